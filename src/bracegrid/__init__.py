@@ -1,0 +1,53 @@
+"""bracegrid: minimum-cost, proven-stable diagonal bracing of rectangular frames."""
+
+from bracegrid._version import __version__
+from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
+from bracegrid.geometry import blocked_bays
+from bracegrid.loading import load_project, parse_member_refs, parse_project
+from bracegrid.model import (
+    CostCatalogue,
+    CostRate,
+    Diagonal,
+    Frame,
+    LoosePart,
+    Member,
+    MemberKind,
+    Opening,
+    Project,
+    Racking,
+    Supports,
+    Verdict,
+)
+from bracegrid.rigidity import check_frame, check_layout, find_critical_members, is_stable
+from bracegrid.saving import render_project, save_project
+
+__all__ = [
+    "BraceGridError",
+    "CostCatalogue",
+    "CostRate",
+    "Diagonal",
+    "ExportError",
+    "Frame",
+    "InfeasibleError",
+    "InputError",
+    "LoosePart",
+    "Member",
+    "MemberKind",
+    "Opening",
+    "Project",
+    "Racking",
+    "SolverLimitError",
+    "Supports",
+    "Verdict",
+    "__version__",
+    "blocked_bays",
+    "check_frame",
+    "check_layout",
+    "find_critical_members",
+    "is_stable",
+    "load_project",
+    "parse_member_refs",
+    "parse_project",
+    "render_project",
+    "save_project",
+]

@@ -1,0 +1,14 @@
+"""``python -m bracegrid`` and the ``bracegrid`` script: the only place that exits."""
+
+import sys
+
+from bracegrid.cli import main
+
+
+def run() -> None:
+    """Run the command line and exit with its code."""
+    sys.exit(main())
+
+
+if __name__ == "__main__":
+    run()

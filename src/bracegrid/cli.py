@@ -1,0 +1,151 @@
+"""Command-line shell over the library. The only module that prints.
+
+Exit codes: 0 success (stable), 1 not stable, 2 bad input, 3 proven
+infeasible, 4 solver limit reached with no layout, 70 internal error.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Callable, Sequence
+from typing import Any, TextIO
+
+from bracegrid._version import __version__
+from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
+from bracegrid.model import Frame, Project
+
+EXIT_OK = 0
+EXIT_UNSTABLE = 1
+EXIT_INPUT = 2
+EXIT_INFEASIBLE = 3
+EXIT_LIMIT = 4
+EXIT_INTERNAL = 70
+
+
+def _frames(project: Project, name: str | None) -> tuple[Frame, ...]:
+    if name is None:
+        return project.frames
+    try:
+        return (project.frame(name),)
+    except KeyError:
+        names = ", ".join(repr(f.name) for f in project.frames)
+        msg = f"--frame {name!r}: no frame of that name; the project has {names}"
+        raise InputError(msg) from None
+
+
+def _without_frame(project: Project, args: argparse.Namespace) -> Frame | None:
+    """The single frame --without refers to, or None when --without is not used."""
+    if not args.without:
+        return None
+    if args.frame is None and len(project.frames) > 1:
+        msg = "--without needs --frame NAME when the project has more than one frame"
+        raise InputError(msg)
+    return _frames(project, args.frame)[0]
+
+
+def _emit(out: TextIO, payload: dict[str, Any]) -> None:
+    out.write(json.dumps(payload, indent=2) + "\n")
+
+
+def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
+    from bracegrid.loading import load_project, parse_member_refs
+    from bracegrid.report import check_dict, render_check
+    from bracegrid.rigidity import check_frame
+
+    project = load_project(args.project)
+    target = _without_frame(project, args)
+    verdicts = []
+    for frame in _frames(project, args.frame):
+        without = parse_member_refs(frame, args.without) if frame is target else ()
+        verdicts.append(check_frame(frame, without=without))
+    if args.json:
+        _emit(out, check_dict(verdicts))
+    else:
+        out.write(render_check(project.name, verdicts))
+    return EXIT_OK if all(v.stable for v in verdicts) else EXIT_UNSTABLE
+
+
+def _add_common(p: argparse.ArgumentParser) -> None:
+    p.add_argument("project", help="project file (TOML)")
+    p.add_argument("--frame", metavar="NAME", help="only this frame (default: every frame)")
+    p.add_argument("--json", action="store_true", help="print one JSON object instead of tables")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser with every sub-command."""
+    from bracegrid.loading import MEMBER_REF_HELP
+
+    parser = argparse.ArgumentParser(
+        prog="bracegrid",
+        description="Lay out and check diagonal bracing of rectangular pin-jointed frames.",
+        epilog="Exit codes: 0 stable/success, 1 not stable, 2 bad input, 3 infeasible, "
+        "4 solver limit without a layout.",
+    )
+    parser.add_argument("--version", action="version", version=f"bracegrid {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+
+    check = sub.add_parser(
+        "check",
+        help="is every frame free of mechanisms? loose parts, racking sense, critical members",
+        description="Check every frame's layout with the directed-cycle criterion.",
+    )
+    _add_common(check)
+    check.add_argument(
+        "--without", nargs="+", default=[], metavar="MEMBER",
+        help=f"check as if these members were taken out (needs --frame if several frames): {MEMBER_REF_HELP}",
+    )  # fmt: skip
+    check.set_defaults(handler=_cmd_check)
+    return parser
+
+
+Handler = Callable[[argparse.Namespace, TextIO], int]
+
+
+def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: TextIO | None = None) -> int:
+    """Run the command line; return the exit code (never calls sys.exit).
+
+    Args:
+        argv: Arguments without the program name (default: sys.argv[1:]).
+        out: Where results go (default: stdout).
+        err: Where errors go (default: stderr).
+
+    Returns:
+        The exit code.
+    """
+    stdout = out or sys.stdout
+    stderr = err or sys.stderr
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse: --help/--version exit 0, usage errors 2
+        return int(exc.code or 0)
+    handler: Handler = args.handler
+    try:
+        return handler(args, stdout)
+    except InputError as exc:
+        stderr.write(f"error: {exc}\n")
+        return EXIT_INPUT
+    except InfeasibleError as exc:
+        stderr.write(f"infeasible: {exc}\n")
+        return EXIT_INFEASIBLE
+    except SolverLimitError as exc:
+        stderr.write(f"solver limit: {exc}\n")
+        return EXIT_LIMIT
+    except ExportError as exc:
+        stderr.write(f"error: {exc}\n")
+        return EXIT_INPUT
+    except BraceGridError as exc:
+        stderr.write(f"error: {exc}\n")
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        stderr.write("interrupted\n")
+        return 130
+    except Exception as exc:  # noqa: BLE001 - last line of defence: no traceback for users
+        stderr.write(
+            f"internal error ({type(exc).__name__}: {exc}). This is a bracegrid bug; "
+            "please report it with the project file.\n"
+        )
+        return EXIT_INTERNAL
+

@@ -1,0 +1,535 @@
+"""Project file (TOML) -> validated :class:`~bracegrid.model.Project`.
+
+Validation collects every problem it finds, each with the file, line (of the
+table it sits in), field and value and a way to fix it, then raises one
+:class:`~bracegrid.errors.InputError` holding them all. The file format is
+documented in docs/project-file.md.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import re
+import tomllib
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, TypeVar
+
+from shapely.geometry import box
+from shapely.validation import explain_validity
+
+from bracegrid.errors import InputError
+from bracegrid.geometry import blocked_bays, opening_polygon
+from bracegrid.model import (
+    CostCatalogue,
+    CostRate,
+    Diagonal,
+    Frame,
+    Member,
+    MemberKind,
+    Opening,
+    Project,
+    Supports,
+)
+from bracegrid.units import MM_PER_UNIT, parse_length
+
+_PROJECT_KEYS = {"name", "length_unit"}
+_COST_KEYS = {"brace", "tie", "contingency_pct"}
+_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"}
+_FRAME_KEYS = {
+    "name", "widths", "heights", "supports", "blocked", "allow", "opening",
+    "member", "opening_overlap", "redundancy",
+}  # fmt: skip
+_OPENING_KEYS = {"name", "polygon"}
+_MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
+_STATUS = {"existing": True, "proposed": False}
+_E = TypeVar("_E", MemberKind, Diagonal, Supports)
+
+
+@dataclass(slots=True)
+class _Lines:
+    """Line numbers of array-of-table headers, found by scanning the text."""
+
+    frames: list[int] = field(default_factory=list)
+    members: list[list[int]] = field(default_factory=list)
+    openings: list[list[int]] = field(default_factory=list)
+
+    @classmethod
+    def scan(cls, text: str) -> _Lines:
+        out = cls()
+        header = re.compile(r"^\s*\[\[\s*(frame(?:\s*\.\s*(?:member|opening))?)\s*\]\]")
+        for number, line in enumerate(text.splitlines(), start=1):
+            match = header.match(line)
+            if match is None:
+                continue
+            name = match.group(1).replace(" ", "")
+            if name == "frame":
+                out.frames.append(number)
+                out.members.append([])
+                out.openings.append([])
+            elif out.frames:
+                (out.members if name.endswith("member") else out.openings)[-1].append(number)
+        return out
+
+    @staticmethod
+    def at(lines: list[int], index: int) -> str:
+        return f"line {lines[index]}, " if index < len(lines) else ""
+
+
+class _Collector:
+    """Gathers problems while reading one file."""
+
+    def __init__(self) -> None:
+        self.problems: list[str] = []
+
+    def add(self, where: str, what: str) -> None:
+        self.problems.append(f"{where}: {what}")
+
+    def unknown_keys(self, where: str, table: Mapping[str, Any], known: set[str]) -> None:
+        for key in table:
+            if key not in known:
+                guess = difflib.get_close_matches(key, sorted(known), n=1)
+                hint = f"; did you mean {guess[0]!r}?" if guess else f"; known fields: {', '.join(sorted(known))}"
+                self.add(where, f"unknown field {key!r}{hint}")
+
+    def number(self, where: str, value: object, *, minimum: float = 0.0, integer: bool = False) -> float | None:
+        ok = isinstance(value, int) if integer else isinstance(value, int | float)
+        if isinstance(value, bool) or not ok or not math.isfinite(float(value)):  # type: ignore[arg-type]
+            kind = "a whole number" if integer else "a number"
+            self.add(where, f"expected {kind}, got {value!r}")
+            return None
+        if float(value) < minimum:  # type: ignore[arg-type]
+            self.add(where, f"must be at least {minimum:g}, got {value!r}")
+            return None
+        return float(value)  # type: ignore[arg-type]
+
+    def table(self, where: str, value: object) -> Mapping[str, Any] | None:
+        if not isinstance(value, dict):
+            self.add(where, f"expected a table, got {type(value).__name__}")
+            return None
+        return value
+
+    def text(self, where: str, value: object) -> str | None:
+        if not isinstance(value, str) or not value.strip():
+            self.add(where, f"expected a non-empty string, got {value!r}")
+            return None
+        return value
+
+
+def _read_rate(col: _Collector, where: str, raw: object) -> CostRate | None:
+    table = col.table(where, raw)
+    if table is None:
+        return None
+    col.unknown_keys(where, table, _RATE_KEYS)
+    values: dict[str, float] = {}
+    for key in ("per_piece", "per_metre"):
+        if key not in table:
+            col.add(where, f"missing field {key!r}; add e.g. `{key} = 10.0` (money)")
+            continue
+        got = col.number(f"{where}.{key}", table[key])
+        if got is not None:
+            values[key] = got
+    labour = col.number(f"{where}.labour_per_piece", table.get("labour_per_piece", 0.0))
+    if len(values) < 2 or labour is None:
+        return None
+    return CostRate(values["per_piece"], values["per_metre"], labour)
+
+
+def _read_costs(col: _Collector, raw: object) -> CostCatalogue | None:
+    if raw is None:
+        col.add("[costs]", "missing; add [costs.brace] and [costs.tie] tables with per_piece and per_metre")
+        return None
+    table = col.table("[costs]", raw)
+    if table is None:
+        return None
+    col.unknown_keys("[costs]", table, _COST_KEYS)
+    rates: dict[str, CostRate | None] = {}
+    for kind in ("brace", "tie"):
+        if kind not in table:
+            col.add(f"[costs.{kind}]", "missing; add it with per_piece and per_metre (money)")
+            rates[kind] = None
+        else:
+            rates[kind] = _read_rate(col, f"[costs.{kind}]", table[kind])
+    contingency = col.number("[costs].contingency_pct", table.get("contingency_pct", 0.0))
+    brace, tie = rates["brace"], rates["tie"]
+    if brace is None or tie is None or contingency is None:
+        return None
+    return CostCatalogue(brace=brace, tie=tie, contingency_pct=contingency)
+
+
+def _read_sizes(col: _Collector, where: str, raw: object, unit: str) -> tuple[int, ...] | None:
+    if not isinstance(raw, list) or not raw:
+        col.add(where, f"expected a non-empty list of lengths (e.g. [3.0, 2.4]), got {raw!r}")
+        return None
+    out: list[int] = []
+    for k, item in enumerate(raw, start=1):
+        try:
+            mm = parse_length(item, unit=unit)
+        except ValueError as exc:
+            col.add(f"{where}[{k}]", str(exc))
+            continue
+        if mm <= 0:
+            col.add(f"{where}[{k}]", f"size must be positive (at least 1 mm), got {item!r}")
+            continue
+        out.append(mm)
+    return tuple(out) if len(out) == len(raw) else None
+
+
+def _read_bay(col: _Collector, where: str, raw: object, rows: int | None, cols: int | None) -> tuple[int, int] | None:
+    if (
+        not isinstance(raw, list)
+        or len(raw) != 2
+        or not all(isinstance(v, int) and not isinstance(v, bool) for v in raw)
+    ):
+        col.add(where, f"expected [row, col] with whole numbers, got {raw!r}")
+        return None
+    row, column = int(raw[0]), int(raw[1])
+    return _check_bay(col, where, row, column, rows, cols)
+
+
+def _check_bay(
+    col: _Collector, where: str, row: int, column: int, rows: int | None, cols: int | None
+) -> tuple[int, int] | None:
+    ok = True
+    if rows is not None and not 1 <= row <= rows:
+        col.add(where, f"row {row} is outside the frame; rows run 1..{rows} from the bottom")
+        ok = False
+    if cols is not None and not 1 <= column <= cols:
+        col.add(where, f"col {column} is outside the frame; columns run 1..{cols} from the left")
+        ok = False
+    return (row, column) if ok and rows is not None and cols is not None else None
+
+
+def _read_enum(col: _Collector, where: str, raw: object, enum: type[_E]) -> _E | None:
+    choices = [e.value for e in enum]
+    if isinstance(raw, str) and raw.strip().lower() in choices:
+        return enum(raw.strip().lower())
+    col.add(where, f"{raw!r} is not one of {', '.join(repr(c) for c in choices)}")
+    return None
+
+
+def _read_opening(
+    col: _Collector, where: str, raw: object, unit: str, frame_box: tuple[int, int] | None
+) -> Opening | None:
+    table = col.table(where, raw)
+    if table is None:
+        return None
+    col.unknown_keys(where, table, _OPENING_KEYS)
+    name = col.text(f"{where}.name", table.get("name"))
+    pts = table.get("polygon")
+    if not isinstance(pts, list) or len(pts) < 3:
+        col.add(f"{where}.polygon", f"expected at least 3 [x, y] points in {unit}, got {pts!r}")
+        return None
+    coords: list[tuple[int, int]] = []
+    for k, p in enumerate(pts, start=1):
+        if not isinstance(p, list) or len(p) != 2:
+            col.add(f"{where}.polygon[{k}]", f"expected [x, y], got {p!r}")
+            continue
+        try:
+            coords.append((parse_length(p[0], unit=unit), parse_length(p[1], unit=unit)))
+        except ValueError as exc:
+            col.add(f"{where}.polygon[{k}]", str(exc))
+    if len(coords) != len(pts) or name is None:
+        return None
+    opening = Opening(name=name, polygon=tuple(coords))
+    poly = opening_polygon(opening)
+    if not poly.is_valid or poly.area <= 0:
+        reason = explain_validity(poly) if not poly.is_valid else "it has no area"
+        col.add(f"{where}.polygon", f"opening {name!r} is not a valid polygon ({reason}); list its corners in order")
+        return None
+    if frame_box is not None:
+        w, h = frame_box
+        if not box(0, 0, w, h).buffer(1.0).contains(poly):
+            x0, y0, x1, y1 = poly.bounds
+            col.add(
+                f"{where}.polygon",
+                f"opening {name!r} (x {x0:.0f}-{x1:.0f} mm, y {y0:.0f}-{y1:.0f} mm) extends beyond the frame "
+                f"(0-{w} mm by 0-{h} mm); clip it to the frame or add bays",
+            )
+            return None
+    return opening
+
+
+def _read_member(col: _Collector, where: str, raw: object, rows: int | None, cols: int | None) -> Member | None:
+    table = col.table(where, raw)
+    if table is None:
+        return None
+    col.unknown_keys(where, table, _MEMBER_KEYS)
+    ok = True
+    for key in ("row", "col", "kind", "diagonal"):
+        if key not in table:
+            col.add(where, f"missing field {key!r}")
+            ok = False
+    if not ok:
+        return None
+    row, column = table["row"], table["col"]
+    if not (isinstance(row, int) and isinstance(column, int)) or isinstance(row, bool) or isinstance(column, bool):
+        col.add(where, f"row and col must be whole numbers, got row={row!r}, col={column!r}")
+        return None
+    bay = _check_bay(col, where, row, column, rows, cols)
+    kind = _read_enum(col, f"{where}.kind", table["kind"], MemberKind)
+    diagonal = _read_enum(col, f"{where}.diagonal", table["diagonal"], Diagonal)
+    status = table.get("status", "existing")
+    if status not in _STATUS:
+        col.add(f"{where}.status", f"{status!r} is not 'existing' or 'proposed'")
+        return None
+    if bay is None or kind is None or diagonal is None:
+        return None
+    return Member(row=row, col=column, kind=kind, diagonal=diagonal, existing=_STATUS[status])
+
+
+def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lines) -> Frame | None:
+    where0 = f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}"
+    table = col.table(where0, raw)
+    if table is None:
+        return None
+    name = col.text(f"{where0}.name", table.get("name"))
+    where = f"{_Lines.at(lines.frames, index)}frame {name!r}" if name else where0
+    col.unknown_keys(where, table, _FRAME_KEYS)
+    widths = _read_sizes(col, f"{where}.widths", table.get("widths"), unit)
+    heights = _read_sizes(col, f"{where}.heights", table.get("heights"), unit)
+    rows = len(heights) if heights else None
+    cols = len(widths) if widths else None
+    supports = _read_enum(col, f"{where}.supports", table.get("supports", "free"), Supports)
+    blocked: set[tuple[int, int]] = set()
+    raw_blocked = table.get("blocked", [])
+    if not isinstance(raw_blocked, list):
+        col.add(f"{where}.blocked", f"expected a list of [row, col] pairs, got {raw_blocked!r}")
+    else:
+        for k, item in enumerate(raw_blocked, start=1):
+            bay = _read_bay(col, f"{where}.blocked[{k}]", item, rows, cols)
+            if bay is not None:
+                blocked.add(bay)
+    allow: set[MemberKind] = set()
+    raw_allow = table.get("allow", ["brace", "tie"])
+    if not isinstance(raw_allow, list) or not raw_allow:
+        col.add(f"{where}.allow", f"expected a non-empty list such as [\"brace\", \"tie\"], got {raw_allow!r}")
+    else:
+        for k, item in enumerate(raw_allow, start=1):
+            kind = _read_enum(col, f"{where}.allow[{k}]", item, MemberKind)
+            if kind is not None:
+                allow.add(kind)
+    overlap = col.number(f"{where}.opening_overlap", table.get("opening_overlap", 0.0))
+    if overlap is not None and overlap >= 1.0:
+        col.add(f"{where}.opening_overlap", f"must be a fraction below 1 (0 = any overlap blocks), got {overlap}")
+    redundancy = col.number(f"{where}.redundancy", table.get("redundancy", 0), integer=True)
+    frame_box = (sum(widths), sum(heights)) if widths and heights else None
+    openings: list[Opening] = []
+    raw_openings = table.get("opening", [])
+    if not isinstance(raw_openings, list):
+        col.add(f"{where}.opening", "write openings as [[frame.opening]] tables")
+        raw_openings = []
+    for k, item in enumerate(raw_openings):
+        at = _Lines.at(lines.openings[index], k) if index < len(lines.openings) else ""
+        got = _read_opening(col, f"{at}frame {name!r} opening #{k + 1}", item, unit, frame_box)
+        if got is not None:
+            openings.append(got)
+    names = [o.name for o in openings]
+    for dup in sorted({n for n in names if names.count(n) > 1}):
+        col.add(f"{where}.opening", f"two openings are named {dup!r}; give each a unique name")
+    members: list[Member] = []
+    member_where: list[str] = []
+    raw_members = table.get("member", [])
+    if not isinstance(raw_members, list):
+        col.add(f"{where}.member", "write members as [[frame.member]] tables")
+        raw_members = []
+    for k, item in enumerate(raw_members):
+        at = _Lines.at(lines.members[index], k) if index < len(lines.members) else ""
+        here = f"{at}frame {name!r} member #{k + 1}"
+        got = _read_member(col, here, item, rows, cols)
+        if got is not None:
+            members.append(got)
+            member_where.append(here)
+    if (
+        name is None
+        or widths is None
+        or heights is None
+        or supports is None
+        or overlap is None
+        or overlap >= 1.0
+        or redundancy is None
+        or len(allow) != len(raw_allow if isinstance(raw_allow, list) else [])
+    ):
+        return None
+    frame = Frame(
+        name=name,
+        widths=widths,
+        heights=heights,
+        supports=supports,
+        blocked=frozenset(blocked),
+        openings=tuple(openings),
+        allow=frozenset(allow),
+        members=tuple(members),
+        opening_overlap=overlap,
+        redundancy=int(redundancy),
+    )
+    _check_members(col, frame, member_where)
+    return frame
+
+
+def _check_members(col: _Collector, frame: Frame, where: list[str]) -> None:
+    closed = blocked_bays(frame)
+    seen: dict[tuple[int, int, Diagonal], str] = {}
+    listed = frame.blocked
+    for member, here in zip(frame.members, where, strict=True):
+        if member.bay in closed:
+            why = "listed in 'blocked'" if member.bay in listed else "covered by an opening"
+            col.add(
+                here,
+                f"a {member.kind.value} in bay r{member.row}c{member.col} but that bay is {why}; "
+                "remove the member or unblock the bay",
+            )
+        key = (member.row, member.col, member.diagonal)
+        if key in seen:
+            col.add(here, f"the {member.diagonal.value} diagonal of bay r{member.row}c{member.col} already holds "
+                    f"a member ({seen[key]}); one member per diagonal")
+        else:
+            seen[key] = here
+
+
+def parse_project(text: str, *, source: str = "<string>") -> Project:
+    """Read and validate a project from TOML text.
+
+    Args:
+        text: The TOML document.
+        source: File name used in error messages.
+
+    Returns:
+        The validated project.
+
+    Raises:
+        InputError: With every problem found.
+
+    Example:
+        >>> p = parse_project('''
+        ... [project]
+        ... name = "demo"
+        ... [costs.brace]
+        ... per_piece = 25.0
+        ... per_metre = 8.0
+        ... [costs.tie]
+        ... per_piece = 9.0
+        ... per_metre = 3.0
+        ... [[frame]]
+        ... name = "f"
+        ... widths = [3.0, 3.0]
+        ... heights = [2.0]
+        ... ''')
+        >>> p.frames[0].widths
+        (3000, 3000)
+    """
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        msg = f"not valid TOML: {exc}; fix the syntax at that place"
+        raise InputError(msg, source=source) from None
+    col = _Collector()
+    lines = _Lines.scan(text)
+    col.unknown_keys("top level", data, {"project", "costs", "frame"})
+    head = col.table("[project]", data.get("project", {}))
+    name = "untitled"
+    unit = "m"
+    if head is not None:
+        col.unknown_keys("[project]", head, _PROJECT_KEYS)
+        if "name" not in head:
+            col.add("[project]", "missing field 'name'; add e.g. name = \"My site\"")
+        else:
+            name = col.text("[project].name", head["name"]) or name
+        raw_unit = head.get("length_unit", "m")
+        if raw_unit not in MM_PER_UNIT:
+            col.add("[project].length_unit", f"{raw_unit!r} is not one of {', '.join(MM_PER_UNIT)}")
+        else:
+            unit = raw_unit
+    costs = _read_costs(col, data.get("costs"))
+    raw_frames = data.get("frame")
+    frames: list[Frame] = []
+    if not isinstance(raw_frames, list) or not raw_frames:
+        col.add("[[frame]]", "no frames; add at least one [[frame]] table with name, widths and heights")
+        raw_frames = []
+    for index, raw in enumerate(raw_frames):
+        got = _read_frame(col, index, raw, unit, lines)
+        if got is not None:
+            frames.append(got)
+    names = [f.name for f in frames]
+    for dup in sorted({n for n in names if names.count(n) > 1}):
+        col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
+    if col.problems or costs is None:
+        raise InputError(col.problems or ["costs could not be read"], source=source)
+    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source)
+
+
+def load_project(path: str | Path) -> Project:
+    """Read and validate a project file.
+
+    Args:
+        path: The TOML file.
+
+    Returns:
+        The validated project.
+
+    Raises:
+        InputError: If the file cannot be read or holds any problem.
+    """
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        msg = "file not found; check the path"
+        raise InputError(msg, source=str(p)) from None
+    except (OSError, UnicodeDecodeError) as exc:
+        msg = f"cannot read the file ({exc}); check it is a UTF-8 text file you may read"
+        raise InputError(msg, source=str(p)) from None
+    return parse_project(text, source=str(p))
+
+
+_MEMBER_REF = re.compile(r"^\s*r(\d+)\s*c(\d+)\s*(?::\s*(rising|falling|r|f))?\s*$", re.IGNORECASE)
+
+#: Help text for the compact member syntax used on the command line.
+MEMBER_REF_HELP = (
+    "a member by bay: rROWcCOL takes out every member in that bay (e.g. r2c3); "
+    "rROWcCOL:rising or :falling (or :r / :f) takes out one diagonal (e.g. r2c3:f). "
+    "Rows count from 1 at the bottom, columns from 1 at the left."
+)
+
+
+def parse_member_refs(frame: Frame, refs: Sequence[str]) -> tuple[Member, ...]:
+    """Resolve compact member references (``r2c3``, ``r2c3:rising``) in a frame.
+
+    Args:
+        frame: The frame whose members are referred to.
+        refs: The references as typed.
+
+    Returns:
+        The members referred to, in frame order, without repeats.
+
+    Raises:
+        InputError: With every reference that is malformed or matches no member.
+
+    Example:
+        >>> from bracegrid.model import Frame, Member, MemberKind, Diagonal
+        >>> m = Member(2, 3, MemberKind.TIE, Diagonal.FALLING)
+        >>> f = Frame("f", (1000,) * 3, (1000,) * 2, members=(m,))
+        >>> parse_member_refs(f, ["r2c3:f"]) == (m,)
+        True
+    """
+    problems: list[str] = []
+    chosen: set[Member] = set()
+    for ref in refs:
+        match = _MEMBER_REF.match(ref)
+        if match is None:
+            problems.append(f"--without {ref!r}: not a member reference; {MEMBER_REF_HELP}")
+            continue
+        row, col = int(match.group(1)), int(match.group(2))
+        side = (match.group(3) or "").lower()
+        diagonal = {"r": Diagonal.RISING, "f": Diagonal.FALLING}.get(side[:1])
+        found = [m for m in frame.members if m.bay == (row, col) and (diagonal is None or m.diagonal is diagonal)]
+        if not found:
+            here = [m.label for m in frame.members if m.bay == (row, col)]
+            hint = f"that bay holds {', '.join(here)}" if here else "that bay holds no member"
+            problems.append(f"--without {ref!r}: no such member in frame {frame.name!r} ({hint})")
+        chosen.update(found)
+    if problems:
+        raise InputError(problems)
+    return tuple(m for m in frame.members if m in chosen)
