@@ -40,3 +40,44 @@ def transpose(frame: Frame) -> Frame:
     """
     members = tuple(Member(m.col, m.row, m.kind, m.diagonal) for m in frame.members)
     return Frame(frame.name, frame.heights, frame.widths, supports=frame.supports, members=members)
+
+
+@st.composite
+def near_minimal_layouts(draw: st.DrawFn, *, max_side: int = 12) -> Frame:
+    """A stable layout pruned to a minimal one (every member critical) plus a few extras.
+
+    Such layouts have many single-member arcs, which drives the critical-member
+    search into its dominator-tree path.
+    """
+    import random
+
+    from bracegrid.rigidity import is_stable
+
+    rng = random.Random(draw(st.integers(0, 2**32 - 1)))
+    rows, cols = rng.randint(3, max_side), rng.randint(3, max_side)
+    sup = rng.choice(list(Supports))
+    kinds = list(MemberKind)
+    members = [
+        Member(i, j, rng.choice(kinds), d)
+        for i in range(1, rows + 1)
+        for j in range(1, cols + 1)
+        for d in Diagonal
+        if rng.random() < 0.45
+    ]
+    frame = Frame("near-minimal", (2000,) * cols, (2000,) * rows, supports=sup)
+    if is_stable(frame, members):
+        rng.shuffle(members)
+        k = 0
+        while k < len(members):
+            trial = members[:k] + members[k + 1 :]
+            if is_stable(frame, trial):
+                members = trial
+            else:
+                k += 1
+    taken = {(m.row, m.col, m.diagonal) for m in members}
+    for _ in range(rng.randint(0, 4)):
+        extra = Member(rng.randint(1, rows), rng.randint(1, cols), rng.choice(kinds), rng.choice(list(Diagonal)))
+        if (extra.row, extra.col, extra.diagonal) not in taken:
+            taken.add((extra.row, extra.col, extra.diagonal))
+            members.append(extra)
+    return Frame("near-minimal", (2000,) * cols, (2000,) * rows, supports=sup, members=tuple(members))

@@ -112,10 +112,15 @@ BAD_CASES = {
     "no costs": (GOOD[: GOOD.index("[costs.brace]")] + GOOD[GOOD.index("[[frame]]") :], "costs"),
     "bad toml": (GOOD.replace('name = "Test yard"', "name = Test yard"), "not valid TOML"),
     "self-crossing opening": (
-        GOOD.replace("[[6.2, 0.0], [8.2, 0.0], [8.2, 3.4], [6.2, 3.4]]", "[[6.2, 0.0], [8.2, 3.4], [8.2, 0.0], [6.2, 3.4]]"),
+        GOOD.replace(
+            "[[6.2, 0.0], [8.2, 0.0], [8.2, 3.4], [6.2, 3.4]]", "[[6.2, 0.0], [8.2, 3.4], [8.2, 0.0], [6.2, 3.4]]"
+        ),
         "not a valid polygon",
     ),
-    "duplicate diagonal": (GOOD + '\n[[frame.member]]\nrow = 1\ncol = 1\nkind = "tie"\ndiagonal = "rising"\n', "already holds"),
+    "duplicate diagonal": (
+        GOOD + '\n[[frame.member]]\nrow = 1\ncol = 1\nkind = "tie"\ndiagonal = "rising"\n',
+        "already holds",
+    ),
     "blocked outside": (GOOD.replace("blocked = [[1, 2]]", "blocked = [[1, 9]]"), "columns run 1..4"),
 }
 

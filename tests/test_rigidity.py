@@ -3,9 +3,12 @@
 from __future__ import annotations
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Racking, Supports
 from bracegrid.rigidity import check_frame, check_layout, count_racking_modes, find_critical_members, is_stable
+from tests.strategies import frames_with_layouts, near_minimal_layouts
 
 B, T = MemberKind.BRACE, MemberKind.TIE
 R, F = Diagonal.RISING, Diagonal.FALLING
@@ -85,3 +88,24 @@ def test_empty_frame_modes() -> None:
     # Free R x C frame with no diagonals: R + C nodes, each its own part.
     assert count_racking_modes(frame(3, 4)) == 6
     assert count_racking_modes(frame(3, 4, supports=Supports.BASE)) == 3
+
+
+# Critical members against brute force: remove each member in turn and re-check.
+# Near-minimal layouts push the search past the one-by-one threshold and into
+# the dominator-tree path.
+@settings(max_examples=150, deadline=None)
+@given(st.one_of(frames_with_layouts(max_rows=9, max_cols=9), near_minimal_layouts()))
+def test_critical_members_match_brute_force(f: Frame) -> None:
+    if not is_stable(f):
+        assert find_critical_members(f) == ()
+        return
+    brute = tuple(m for k, m in enumerate(f.members) if not is_stable(f, f.members[:k] + f.members[k + 1 :]))
+    assert find_critical_members(f) == brute
+
+
+def test_critical_members_of_a_large_spanning_tree_are_all_members() -> None:
+    # A spanning tree of braces: every brace is critical (Bolker & Crapo 1979: removing
+    # an edge of a spanning tree disconnects it).
+    n = 60
+    tree = tuple(Member(1, j, B, R) for j in range(1, n + 1)) + tuple(Member(i, 1, B, R) for i in range(2, n + 1))
+    assert find_critical_members(frame(n, n), tree) == tree
