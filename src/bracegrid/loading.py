@@ -338,9 +338,9 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     for k, item in enumerate(raw_members):
         at = _Lines.at(lines.members[index], k) if index < len(lines.members) else ""
         here = f"{at}frame {name!r} member #{k + 1}"
-        got = _read_member(col, here, item, rows, cols)
-        if got is not None:
-            members.append(got)
+        member = _read_member(col, here, item, rows, cols)
+        if member is not None:
+            members.append(member)
             member_where.append(here)
     if (
         name is None

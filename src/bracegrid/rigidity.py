@@ -346,7 +346,7 @@ def _critical(arcs: ArcSet, layout: Sequence[Member]) -> tuple[Member, ...]:
     if not bridges.any() or not layout:
         return ()
     hit = np.isin(arcs.member_keys, arcs.keys[bridges]).any(axis=1)
-    return tuple(layout[i] for i in np.flatnonzero(hit))
+    return tuple(layout[i] for i in np.flatnonzero(hit).tolist())
 
 
 def find_critical_members(frame: Frame, members: Sequence[Member] | None = None) -> tuple[Member, ...]:
