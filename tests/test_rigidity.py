@@ -7,7 +7,14 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Racking, Supports
-from bracegrid.rigidity import check_frame, check_layout, count_racking_modes, find_critical_members, is_stable
+from bracegrid.rigidity import (
+    check_frame,
+    check_layout,
+    count_racking_modes,
+    find_critical_members,
+    is_stable,
+    redundancy_of,
+)
 from tests.strategies import frames_with_layouts, near_minimal_layouts
 
 B, T = MemberKind.BRACE, MemberKind.TIE
@@ -109,3 +116,32 @@ def test_critical_members_of_a_large_spanning_tree_are_all_members() -> None:
     n = 60
     tree = tuple(Member(1, j, B, R) for j in range(1, n + 1)) + tuple(Member(i, 1, B, R) for i in range(2, n + 1))
     assert find_critical_members(frame(n, n), tree) == tree
+
+
+# Redundancy against brute force: a layout has redundancy k iff it survives removing
+# every set of k members and fails for some set of k + 1 (definition; Menger's theorem
+# is what makes the flow computation equal to it).
+@settings(max_examples=80, deadline=None)
+@given(frames_with_layouts(max_rows=3, max_cols=3))
+def test_redundancy_matches_brute_force(f: Frame) -> None:
+    import itertools
+
+    got = redundancy_of(f, at_most=3)
+    if not is_stable(f):
+        assert got == -1
+        return
+    members = f.members
+    k = 0
+    while k < 3 and all(
+        is_stable(f, [m for m in members if m not in gone]) for gone in itertools.combinations(members, k + 1)
+    ):
+        k += 1
+    assert got == k
+
+
+def test_redundancy_of_x_braced_single_bay() -> None:
+    # Two braces in one bay: lose either and the other holds: redundancy 1.
+    both = (Member(1, 1, B, R), Member(1, 1, B, F))
+    assert redundancy_of(frame(1, 1), both) == 1
+    # An X of ties: each tie is the only arc one way: redundancy 0.
+    assert redundancy_of(frame(1, 1), (Member(1, 1, T, R), Member(1, 1, T, F))) == 0

@@ -27,7 +27,7 @@ import networkx as nx
 import numpy as np
 import numpy.typing as npt
 from scipy.sparse import csr_matrix
-from scipy.sparse.csgraph import breadth_first_order, connected_components, dijkstra
+from scipy.sparse.csgraph import breadth_first_order, connected_components, dijkstra, maximum_flow
 
 from bracegrid.model import (
     Diagonal,
@@ -444,3 +444,52 @@ def count_racking_modes(frame: Frame, members: Sequence[Member] | None = None) -
     layout = frame.members if members is None else members
     count, _ = _strong_labels(build_arcs(frame, layout))
     return count - 1
+
+
+def redundancy_of(frame: Frame, members: Sequence[Member] | None = None, *, at_most: int = 8) -> int:
+    """How many members a layout can lose, any of them, and stay stable.
+
+    Each member gives at most one arc across a cut in each direction, so the
+    layout survives the loss of any k members iff every directed cut is crossed
+    by at least k + 1 member arcs (Menger's theorem; Edmonds' branching
+    theorem for the directed case). The smallest such crossing is the arc
+    connectivity of the member multigraph: the least of the maximum flows from
+    one node to every other and back, with each arc's capacity the number of
+    members giving it (ground arcs never fail).
+
+    Args:
+        frame: Sizes and supports; its own members unless ``members`` is given.
+        members: The layout.
+        at_most: Stop counting above this (the flows are cut short there).
+
+    Returns:
+        -1 if the layout is not stable, else the largest k (capped at ``at_most``)
+        such that the layout survives the loss of any k members.
+
+    Example:
+        >>> from bracegrid.model import Frame, Member, MemberKind, Diagonal
+        >>> f = Frame("f", (3000,), (2000,))
+        >>> b = MemberKind.BRACE
+        >>> redundancy_of(f, [Member(1, 1, b, Diagonal.RISING), Member(1, 1, b, Diagonal.FALLING)])
+        1
+    """
+    layout = frame.members if members is None else members
+    arcs = build_arcs(frame, layout)
+    count, _ = _strong_labels(arcs)
+    if count != 1:
+        return -1
+    if arcs.nodes == 1:
+        return at_most
+    cap = at_most + 1
+    capacity = np.minimum(arcs.multiplicity, cap).astype(np.int32)
+    if frame.supports is Supports.BASE:
+        ground = arcs.nodes - 1
+        capacity[(arcs.src == ground) | (arcs.dst == ground)] = cap
+    graph = csr_matrix((capacity, (arcs.src, arcs.dst)), shape=(arcs.nodes, arcs.nodes))
+    best = cap
+    for v in range(1, arcs.nodes):
+        for s, t in ((0, v), (v, 0)):
+            best = min(best, int(maximum_flow(graph, s, t).flow_value))
+            if best == 1:
+                return 0
+    return min(best - 1, at_most)
