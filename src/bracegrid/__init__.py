@@ -18,6 +18,15 @@ from bracegrid.model import (
     Supports,
     Verdict,
 )
+from bracegrid.optimize import (
+    FrameSolution,
+    ProgressEvent,
+    ProjectSolution,
+    SolveOptions,
+    SolveStatus,
+    optimize_frame,
+    optimize_project,
+)
 from bracegrid.rigidity import check_frame, check_layout, find_critical_members, is_stable
 from bracegrid.saving import render_project, save_project
 
@@ -28,14 +37,19 @@ __all__ = [
     "Diagonal",
     "ExportError",
     "Frame",
+    "FrameSolution",
     "InfeasibleError",
     "InputError",
     "LoosePart",
     "Member",
     "MemberKind",
     "Opening",
+    "ProgressEvent",
     "Project",
+    "ProjectSolution",
     "Racking",
+    "SolveOptions",
+    "SolveStatus",
     "SolverLimitError",
     "Supports",
     "Verdict",
@@ -46,6 +60,8 @@ __all__ = [
     "find_critical_members",
     "is_stable",
     "load_project",
+    "optimize_frame",
+    "optimize_project",
     "parse_member_refs",
     "parse_project",
     "render_project",

@@ -15,6 +15,7 @@ optimal for the full model.
 
 from __future__ import annotations
 
+import itertools
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -267,7 +268,7 @@ class CutModel:
             span = (t.cols if axis == 0 else t.rows) * 2 + 1
             for members in classes:
                 sigs = [self._signature(axis, idx, span) for idx in members]
-                for a, b in zip(sigs, sigs[1:], strict=False):
+                for a, b in itertools.pairwise(sigs):
                     self.model.add(a >= b)  # type: ignore[operator]
 
     def _signature(self, axis: int, idx: int, span: int) -> object:
@@ -431,7 +432,7 @@ def solve_with_cuts(
             break
         bound = max(bound, int(np.ceil(solver.best_objective_bound - 1e-6)))
         if status == cp_model.OPTIMAL:
-            bound = max(bound, int(round(solver.objective_value)))
+            bound = max(bound, round(solver.objective_value))
         relaxed = cm.read(solver)
         cuts = violated_cuts(table, relaxed, k)
         candidate = relaxed if not cuts else improve(relaxed)

@@ -147,8 +147,8 @@ def _max_additions(table: BayTable, k: int) -> Additions:
 
 def _infeasible_reasons(frame: Frame, table: BayTable, allow: frozenset[MemberKind], k: int) -> list[str]:
     """Why no layout exists (empty when one does)."""
-    from bracegrid.rigidity import redundancy_of
     from bracegrid.report import anchor_words, describe_part
+    from bracegrid.rigidity import redundancy_of
 
     full = _max_additions(table, k)
     kept = tuple(frame.members)
@@ -172,13 +172,13 @@ def _infeasible_reasons(frame: Frame, table: BayTable, allow: frozenset[MemberKi
                     f"frame {name!r}: column {j + 1} has every bay blocked, so nothing ties it to the rest; "
                     "unblock a bay in that column or pin the base"
                 )
-        if allow == frozenset({MemberKind.TIE}) and min(table.rows, table.cols) == 1:
-            x_bays = (table.rising_free & table.falling_free).any()
-            if not x_bays and not verdict.stable:
-                reasons.append(
-                    f"frame {name!r}: ties only with supports free on a 1-row (or 1-column) frame needs both "
-                    "diagonals of some bay (an X of ties); free a bay's two diagonals or allow braces"
-                )
+        if allow == frozenset({MemberKind.TIE}) and min(table.rows, table.cols) == 1 and not verdict.stable:
+            line = "row" if table.rows == 1 else "column"
+            reasons.append(
+                f"frame {name!r}: ties only with supports free on a 1-{line} frame needs both diagonals of "
+                f"every bay (an X of ties, or a kept brace): each {'column' if line == 'row' else 'row'} is "
+                "held only through its own bay; clear those bays, allow braces or pin the base"
+            )
     if not verdict.stable:
         if not reasons:
             anchor = anchor_words(verdict)
