@@ -352,6 +352,26 @@ def configure(params: object, *, workers: int, seed: int, seconds: float) -> Non
         p.subsolvers.extend(["max_lp", "quick_restart"])  # type: ignore[attr-defined]
 
 
+class _Collector:
+    """CP-SAT callback keeping the last few answers met during a solve."""
+
+    def __new__(cls, cm: CutModel) -> _Collector:  # noqa: D102
+        from ortools.sat.python import cp_model
+
+        class _Impl(cp_model.CpSolverSolutionCallback):  # type: ignore[misc]
+            def __init__(self) -> None:
+                super().__init__()
+                self.seen: list[Additions] = []
+
+            def on_solution_callback(self) -> None:
+                self.seen.append(cm.read(self))
+                del self.seen[:-8]
+
+        return _Impl()  # type: ignore[return-value]
+
+    seen: list[Additions]
+
+
 @dataclass(frozen=True, slots=True)
 class LoopReport:
     """One step of the cut loop, for progress display.
@@ -382,6 +402,7 @@ def solve_with_cuts(
     seed: int,
     on_step: Callable[[LoopReport], None] | None = None,
     initial_bound: int = 0,
+    lns_rounds: int = 0,
 ) -> CutSolveResult:
     """Run the lazy-cut loop until proven optimal or the deadline.
 
@@ -397,6 +418,7 @@ def solve_with_cuts(
         seed: CP-SAT random seed.
         on_step: Called after every solver call.
         initial_bound: A lower bound known beforehand (e.g. the closed form of the complete frame).
+        lns_rounds: Window re-optimisations of the incumbent after each round (0 = none).
 
     Returns:
         The best layout, a proven lower bound and whether it is optimal.
@@ -420,7 +442,8 @@ def solve_with_cuts(
         solver = cp_model.CpSolver()
         p = solver.parameters
         configure(p, workers=workers, seed=seed, seconds=remaining)
-        status = solver.solve(cm.model)
+        collector = _Collector(cm)
+        status = solver.solve(cm.model, collector)
         iterations += 1
         if status == cp_model.INFEASIBLE:
             if best is None:
@@ -443,14 +466,108 @@ def solve_with_cuts(
         if best_cost is not None and bound >= best_cost:
             proven = True
             bound = best_cost
+        if (
+            not proven
+            and best is not None
+            and lns_rounds > 0
+            and min(table.rows, table.cols) > 2
+        ):
+            better = improve_by_windows(
+                table, best, k=k, rounds=lns_rounds, seed=seed + iterations, deadline=deadline,
+                row_sizes=row_sizes, col_sizes=col_sizes,
+            )  # fmt: skip
+            if better is not None and better.cost(table) < (best_cost or 0):
+                best, best_cost = better, better.cost(table)
+                if bound >= best_cost:
+                    proven, bound = True, best_cost
         if on_step is not None:
             on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
         if proven or status != cp_model.OPTIMAL:
             break
         for s in cuts:
             cm.add_cut(s)
+        # Answers met on the way violate other sets: their cuts come for free.
+        for other in collector.seen[:-1]:
+            for s in violated_cuts(table, other, k):
+                cm.add_cut(s)
         if k == 0 and cuts:
             from bracegrid.warmstart import strong_labels
 
             cm.add_partition(strong_labels(table, relaxed)[1])
     return CutSolveResult(best, bound, proven, iterations, len(cm.cuts))
+
+
+def window_table(table: BayTable, fixed: Additions, rows: IntArray, cols: IntArray) -> BayTable:
+    """The table with every bay outside rows x cols frozen at ``fixed`` (its members then count as kept)."""
+    import dataclasses
+
+    inside = np.zeros((table.rows, table.cols), dtype=bool)
+    inside[np.ix_(rows, cols)] = True
+    outside = ~inside
+    return dataclasses.replace(
+        table,
+        rising_free=table.rising_free & inside,
+        falling_free=table.falling_free & inside,
+        brace_ok=table.brace_ok & inside,
+        exist_up=table.exist_up + np.where(outside, fixed.braces + fixed.rising, 0),
+        exist_down=table.exist_down + np.where(outside, fixed.braces + fixed.falling, 0),
+    )
+
+
+def improve_by_windows(
+    table: BayTable,
+    incumbent: Additions,
+    *,
+    k: int,
+    rounds: int,
+    seed: int,
+    deadline: float,
+    row_sizes: tuple[int, ...],
+    col_sizes: tuple[int, ...],
+) -> Additions | None:
+    """Large-neighbourhood search: re-optimise the incumbent inside random row x column windows.
+
+    Members outside a window are frozen; inside it the cut model is solved
+    exactly (small), so the result never costs more than the incumbent.
+
+    Returns:
+        An improved layout, or None if no window helped.
+    """
+    from bracegrid.warmstart import constructive, constructive_redundant
+
+    rng = np.random.default_rng(seed)
+    best = incumbent
+    best_cost = incumbent.cost(table)
+    improved = False
+    side_r = min(table.rows, 10)
+    side_c = min(table.cols, 10)
+    for _ in range(rounds):
+        if deadline - time.monotonic() < 0.5:
+            break
+        rows = np.sort(rng.choice(table.rows, size=side_r, replace=False))
+        cols = np.sort(rng.choice(table.cols, size=side_c, replace=False))
+        sub = window_table(table, best, rows, cols)
+        inside = np.zeros((table.rows, table.cols), dtype=np.int64)
+        inside[np.ix_(rows, cols)] = 1
+        start = Additions(best.braces * inside, best.rising * inside, best.falling * inside)
+        fix: Callable[[Additions], Additions | None]
+        if k == 0:
+            fix = lambda a: constructive(sub, a)  # noqa: E731
+        else:
+            fix = lambda a: constructive_redundant(sub, a, k)  # noqa: E731
+        got = solve_with_cuts(
+            sub, k=k, row_sizes=row_sizes, col_sizes=col_sizes, incumbent=start, improve=fix,
+            deadline=min(deadline, time.monotonic() + 2.0), workers=1, seed=seed,
+        )  # fmt: skip
+        if got.additions is None:
+            continue
+        outside = 1 - inside
+        merged = Additions(
+            got.additions.braces * inside + best.braces * outside,
+            got.additions.rising * inside + best.rising * outside,
+            got.additions.falling * inside + best.falling * outside,
+        )
+        cost = merged.cost(table)
+        if cost < best_cost:
+            best, best_cost, improved = merged, cost, True
+    return best if improved else None

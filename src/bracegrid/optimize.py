@@ -345,6 +345,7 @@ def _solve_cp(
         seed=options.seed,
         on_step=step,
         initial_bound=floor,
+        lns_rounds=4,
     )
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise --time-limit"
