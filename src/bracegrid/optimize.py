@@ -315,8 +315,8 @@ def _solve_cp(
             if tree is not None:
                 starts.append(warmstart.prune(table, tree.additions))
     else:
-        improve = lambda a: warmstart.constructive_redundant(table, a, k)  # noqa: E731
-        starts = [warmstart.constructive_redundant(table, None, k)]
+        improve = lambda a: warmstart.constructive_redundant(table, a, k, deadline=deadline)  # noqa: E731
+        starts = [warmstart.constructive_redundant(table, None, k, deadline=deadline)]
     found = [s for s in starts if s is not None]
     incumbent = min(found, key=lambda a: a.cost(table)) if found else None
     report("warm start", None if incumbent is None else incumbent.cost(table), 0)

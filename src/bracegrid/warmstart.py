@@ -219,16 +219,53 @@ def constructive(table: BayTable, start: Additions | None = None) -> Additions |
     return None if fixed is None else prune(table, fixed)
 
 
-def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> Additions | None:
+def _meets(table: BayTable, add: Additions, k: int) -> bool:
+    """Every cut has k + 1 member arcs (maximum flows from node 0 and back, stopping at the first short one)."""
+    from scipy.sparse.csgraph import maximum_flow
+
+    from bracegrid.cutmodel import arc_lists
+
+    n = table.rows + table.cols
+    src, dst, cap = arc_lists(table, add)
+    g = csr_matrix((cap.astype(np.int32), (src, dst)), shape=(n, n))
+    gt = g.T.tocsr()
+    for v in range(1, n):
+        for graph in (g, gt):
+            if maximum_flow(graph, 0, v).flow_value < k + 1:
+                return False
+    return True
+
+
+def _cut_short(table: BayTable, add: Additions, s: frozenset[int], k: int) -> bool:
+    """Whether node set S still has fewer than k + 1 member arcs leaving it."""
+    r_count = table.rows
+    in_row = np.zeros(r_count, dtype=bool)
+    in_col = np.zeros(table.cols, dtype=bool)
+    for v in s:
+        if v < r_count:
+            in_row[v] = True
+        else:
+            in_col[v - r_count] = True
+    leaving = add.up(table)[in_row[:, None] & ~in_col[None, :]].sum()
+    leaving += add.down(table)[~in_row[:, None] & in_col[None, :]].sum()
+    return bool(leaving < k + 1)
+
+
+def constructive_redundant(
+    table: BayTable, start: Additions | None, k: int, *, deadline: float | None = None
+) -> Additions | None:
     """Greedy layout of a free frame whose every cut has k + 1 member arcs, then pruned.
 
-    Repeatedly takes a violated cut (a minimum cut with too few arcs) and adds
-    the cheapest member giving an arc across it; then drops new members,
-    dearest first, while every cut stays satisfied.
+    Repeatedly takes the violated cuts (minimum cuts with too few arcs) and,
+    for each still short, adds the cheapest member giving an arc across it;
+    then drops new members, dearest first, while every cut stays satisfied
+    (pruning stops at the deadline; the layout is valid either way).
 
     Returns:
         The additions, or None if the allowed members cannot satisfy some cut.
     """
+    import time
+
     from bracegrid.cutmodel import violated_cuts
 
     r_count = table.rows
@@ -239,23 +276,25 @@ def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> 
         cuts = violated_cuts(table, cur, k)
         if not cuts:
             break
-        s = cuts[0]
-        in_row = np.array([i in s for i in range(r_count)])
-        in_col = np.array([r_count + j in s for j in range(table.cols)])
-        up, down, up_kind, down_kind = _arc_prices(table, cur)
-        cu = np.where(in_row[:, None] & ~in_col[None, :], up, _BIG)
-        cd = np.where(~in_row[:, None] & in_col[None, :], down, _BIG)
-        iu, idn = int(cu.argmin()), int(cd.argmin())
-        if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
-            return None
-        is_up = cu.flat[iu] <= cd.flat[idn]
-        i, j = divmod(iu if is_up else idn, table.cols)
-        if (up_kind if is_up else down_kind)[i, j] == 1:
-            cur.braces[i, j] += 1
-        elif is_up:
-            cur.rising[i, j] += 1
-        else:
-            cur.falling[i, j] += 1
+        for s in cuts:
+            if not _cut_short(table, cur, s, k):
+                continue
+            in_row = np.array([i in s for i in range(r_count)])
+            in_col = np.array([r_count + j in s for j in range(table.cols)])
+            up, down, up_kind, down_kind = _arc_prices(table, cur)
+            cu = np.where(in_row[:, None] & ~in_col[None, :], up, _BIG)
+            cd = np.where(~in_row[:, None] & in_col[None, :], down, _BIG)
+            iu, idn = int(cu.argmin()), int(cd.argmin())
+            if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
+                return None
+            is_up = cu.flat[iu] <= cd.flat[idn]
+            i, j = divmod(iu if is_up else idn, table.cols)
+            if (up_kind if is_up else down_kind)[i, j] == 1:
+                cur.braces[i, j] += 1
+            elif is_up:
+                cur.rising[i, j] += 1
+            else:
+                cur.falling[i, j] += 1
     items = []
     for name, arr, price in (("b", cur.braces, table.brace_cost), ("r", cur.rising, table.tie_cost),
                              ("f", cur.falling, table.tie_cost)):  # fmt: skip
@@ -264,7 +303,9 @@ def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> 
     items.sort()
     arrays = {"b": cur.braces, "r": cur.rising, "f": cur.falling}
     for _, i, j, name in items:
+        if deadline is not None and time.monotonic() > deadline:
+            break
         arrays[name][i, j] -= 1
-        if violated_cuts(table, cur, k):
+        if not _meets(table, cur, k):
             arrays[name][i, j] += 1
     return cur
