@@ -14,24 +14,25 @@ from that check, never from the caller.
 from __future__ import annotations
 
 import io
-from collections.abc import Sequence
+import re
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from datetime import date
+from enum import Enum
 from pathlib import Path
 from typing import IO, TYPE_CHECKING
 
 from bracegrid._version import __version__
 from bracegrid.bom import Bom, build_bom
-from bracegrid.errors import ExportError
-from bracegrid.geometry import blocked_bays
+from bracegrid.errors import ExportError, InputError
+from bracegrid.geometry import blocked_bays, opening_polygon
 from bracegrid.layers import Layer, member_layer
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Racking, Supports, Verdict
-from bracegrid.report import CAUTION, format_numbers
+from bracegrid.report import CAUTION
 from bracegrid.rigidity import check_frame
 from bracegrid.saving import write_atomic
 from bracegrid.sheet import (
     GAP,
-    H_LABEL,
     H_SMALL,
     H_TITLE,
     FrameBox,
@@ -62,6 +63,7 @@ from bracegrid.units import DXF_INSUNITS, format_length_m
 
 if TYPE_CHECKING:
     from ezdxf.document import Drawing
+    from ezdxf.layouts.layout import Modelspace
 
 #: DXF version written (AutoCAD 2013 format).
 DXF_VERSION = "R2013"
@@ -162,10 +164,7 @@ def member_endpoints(frame: Frame, m: Member) -> tuple[tuple[float, float], tupl
     return (x0, y1), (x1, y0)
 
 
-def _draw_frame(msp: object, fs: FrameSheet, origin: tuple[float, float], scale: float) -> None:  # noqa: C901
-    from ezdxf.layouts import Modelspace
-
-    assert isinstance(msp, Modelspace)
+def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], scale: float) -> None:
     f, v = fs.frame, fs.verdict
     ox, oy = origin
     pen = Pen(msp, scale, origin)
@@ -202,8 +201,6 @@ def _draw_frame(msp: object, fs: FrameSheet, origin: tuple[float, float], scale:
     for opening in f.openings:
         pts = [at(x, y) for x, y in opening.polygon]
         msp.add_lwpolyline(pts, close=True, dxfattribs={"layer": Layer.OPENING.layer_name})
-        from bracegrid.geometry import opening_polygon
-
         spot = opening_polygon(opening).representative_point()
         _label_box(pen, opening.name, spot.x / scale, spot.y / scale)
     # grid lines (extended into the margins) and the bars
@@ -287,7 +284,8 @@ def _label_box(pen: Pen, text: str, x: float, y: float) -> None:
     half_w = text_width(text, H_SMALL) / 2 + 0.8
     half_h = H_SMALL / 2 + 0.8
     corners = [pen.at(x - half_w, y - half_h), pen.at(x + half_w, y + half_h)]
-    pen.msp.add_wipeout(corners, dxfattribs={"layer": Layer.OPENING_LABEL.layer_name})
+    mask = pen.msp.add_wipeout(corners)
+    mask.dxf.layer = Layer.OPENING_LABEL.layer_name
     pen.text(text, x, y, height=H_SMALL, layer=Layer.OPENING_LABEL, align="MIDDLE_CENTER")
 
 
@@ -325,7 +323,7 @@ def build_drawing(project: Project, *, frames: Sequence[Frame] | None = None, wh
         >>> sheet.doc.header["$INSUNITS"], sheet.plan.sheet
         (4, 'A3')
     """
-    import ezdxf
+    from ezdxf.filemanagement import new
 
     chosen = tuple(project.frames if frames is None else frames)
     sheets = tuple(plan_frame(f) for f in chosen)
@@ -335,7 +333,7 @@ def build_drawing(project: Project, *, frames: Sequence[Frame] | None = None, wh
     plan = plan_sheet([_box(s) for s in sheets], band)
     scale = plan.scale
 
-    doc = ezdxf.new(DXF_VERSION, units=DXF_INSUNITS[DXF_UNIT])
+    doc = new(DXF_VERSION, units=DXF_INSUNITS[DXF_UNIT])
     doc.header["$MEASUREMENT"] = 1
     doc.header["$LWDISPLAY"] = 1
     setup_document(doc, scale=scale)
@@ -383,7 +381,7 @@ def write_dxf(doc: Drawing, path: str | Path) -> Path:
     """
     try:
         data = dxf_bytes(doc)
-    except Exception as exc:  # noqa: BLE001 - ezdxf raises several types while serialising
+    except Exception as exc:
         msg = f"cannot serialise the drawing for {path}: {exc}"
         raise ExportError(msg) from exc
 
@@ -393,15 +391,143 @@ def write_dxf(doc: Drawing, path: str | Path) -> Path:
     return write_atomic(path, write)
 
 
-__all__ = [
-    "DXF_UNIT",
-    "DXF_VERSION",
-    "DrawnSheet",
-    "FrameSheet",
-    "build_drawing",
-    "dxf_bytes",
-    "format_numbers",
-    "member_endpoints",
-    "plan_frame",
-    "write_dxf",
-]
+class OutputFormat(Enum):
+    """File formats ``bracegrid draw`` can write (the bill CSV is always written)."""
+
+    DXF = "dxf"
+    SVG = "svg"
+    PNG = "png"
+    PDF = "pdf"
+
+
+def parse_formats(text: str) -> tuple[OutputFormat, ...]:
+    """Read a comma-separated format list such as ``"dxf,png"``.
+
+    Raises:
+        InputError: Naming every unknown format and the known ones.
+
+    Example:
+        >>> [f.value for f in parse_formats("dxf, PNG")]
+        ['dxf', 'png']
+    """
+    known = [f.value for f in OutputFormat]
+    chosen: list[OutputFormat] = []
+    bad: list[str] = []
+    for raw in text.split(","):
+        item = raw.strip().lower().lstrip(".")
+        if not item:
+            continue
+        if item not in known:
+            bad.append(item)
+        elif OutputFormat(item) not in chosen:
+            chosen.append(OutputFormat(item))
+    if bad or not chosen:
+        what = f"unknown format {', '.join(repr(b) for b in bad)}" if bad else "no format given"
+        msg = f"--format {text!r}: {what}; choose from {', '.join(known)} separated by commas (e.g. dxf,png)"
+        raise InputError(msg)
+    return tuple(chosen)
+
+
+def file_slug(name: str) -> str:
+    """A file-name-safe form of a frame or project name.
+
+    Example:
+        >>> file_slug("West end frame #2")
+        'west-end-frame-2'
+    """
+    slug = re.sub(r"[^a-z0-9]+", "-", name.lower()).strip("-")
+    return slug or "frame"
+
+
+@dataclass(frozen=True, slots=True)
+class OutputFile:
+    """One file ``bracegrid draw`` writes.
+
+    Attributes:
+        name: File name (no folder).
+        data: Its full contents.
+    """
+
+    name: str
+    data: bytes
+
+
+def render_outputs(
+    project: Project,
+    *,
+    stem: str,
+    frames: Sequence[Frame] | None = None,
+    formats: Sequence[OutputFormat] = (OutputFormat.DXF, OutputFormat.PNG),
+    per_frame: bool = False,
+    when: date | None = None,
+    dpi: int = 150,
+) -> tuple[tuple[DrawnSheet, ...], tuple[OutputFile, ...]]:
+    """Render every file of a ``draw`` run in memory (nothing is written here).
+
+    Args:
+        project: The project.
+        stem: Base of the file names.
+        frames: Frames to draw (default: all).
+        formats: Drawing and preview formats.
+        per_frame: One sheet per frame instead of one for all.
+        when: Title-block date (default: today).
+        dpi: PNG resolution.
+
+    Returns:
+        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet and
+        ``<stem>-bom.csv`` for the frames drawn.
+    """
+    from bracegrid.bom import render_bom_csv
+    from bracegrid.preview import PreviewFormat, render_preview
+
+    chosen = tuple(project.frames if frames is None else frames)
+    groups: list[tuple[str, tuple[Frame, ...]]]
+    if per_frame:
+        used: set[str] = set()
+        groups = []
+        for f in chosen:
+            name, k = f"{stem}-{file_slug(f.name)}", 2
+            while name in used:
+                name, k = f"{stem}-{file_slug(f.name)}-{k}", k + 1
+            used.add(name)
+            groups.append((name, (f,)))
+    else:
+        groups = [(stem, chosen)]
+    sheets: list[DrawnSheet] = []
+    files: list[OutputFile] = []
+    for base, group in groups:
+        sheet = build_drawing(project, frames=group, when=when)
+        sheets.append(sheet)
+        for fmt in formats:
+            if fmt is OutputFormat.DXF:
+                files.append(OutputFile(f"{base}.dxf", dxf_bytes(sheet.doc)))
+            else:
+                files.append(
+                    OutputFile(f"{base}.{fmt.value}", render_preview(sheet, PreviewFormat(fmt.value), dpi=dpi))
+                )
+    bom = build_bom(project, frames=chosen)
+    files.append(OutputFile(f"{stem}-bom.csv", render_bom_csv(bom).encode("utf-8")))
+    return tuple(sheets), tuple(files)
+
+
+def write_outputs(folder: str | Path, files: Sequence[OutputFile]) -> tuple[Path, ...]:
+    """Write rendered files into a folder, each atomically.
+
+    Raises:
+        ExportError: If the folder or a file cannot be written.
+    """
+    out = Path(folder)
+    if out.exists() and not out.is_dir():
+        msg = f"--out {out}: exists and is not a folder; give a folder path"
+        raise ExportError(msg)
+    written = []
+    for item in files:
+        written.append(write_atomic(out / item.name, _writer(item.data)))
+    return tuple(written)
+
+
+def _writer(data: bytes) -> Callable[[IO[bytes]], None]:
+    def write(handle: IO[bytes]) -> None:
+        handle.write(data)
+
+    return write

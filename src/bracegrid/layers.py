@@ -47,11 +47,15 @@ class Layer(Enum):
     TIE_EXST = LayerSpec("S-BRCG-TIES-EXST", 5, "BG_TIE", 25, "tension-only ties already in place", own=True)
     TIE_NEWW = LayerSpec("S-BRCG-TIES-NEWW", 1, "BG_TIE", 50, "tension-only ties proposed", own=True)
     TIE_SENSE = LayerSpec("S-BRCG-SENS", 7, "Continuous", 25, "racking-sense markers on ties", own=True)
-    CRITICAL = LayerSpec("S-BRCG-CRIT", 6, "Continuous", 35, "critical-member markers (single points of failure)", own=True)
+    CRITICAL = LayerSpec(
+        "S-BRCG-CRIT", 6, "Continuous", 35, "critical-member markers (single points of failure)", own=True
+    )
     OPENING = LayerSpec("S-OPNG", 3, "BG_EDGE", 25, "opening outlines", own=True)
-    OPENING_PATT = LayerSpec("S-OPNG-PATT", 8, "Continuous", 13, "hatching of blocked bays and openings")
-    OPENING_LABEL = LayerSpec("S-OPNG-IDEN", 7, "Continuous", 25, "opening and blocked-bay labels")
-    LOOSE = LayerSpec("S-ANNO-LOOS", 30, "Continuous", 13, "shading and tags of loose parts (unstable frames)", own=True)
+    OPENING_PATT = LayerSpec("S-OPNG-PATT", 8, "Continuous", 13, "hatching of blocked bays and openings", own=True)
+    OPENING_LABEL = LayerSpec("S-OPNG-IDEN", 7, "Continuous", 25, "opening and blocked-bay labels", own=True)
+    LOOSE = LayerSpec(
+        "S-ANNO-LOOS", 30, "Continuous", 13, "shading and tags of loose parts (unstable frames)", own=True
+    )
     SUPPORT = LayerSpec("S-FNDN", 7, "Continuous", 50, "ground line under a pinned base")
     SUPPORT_SYMBOL = LayerSpec("S-FNDN-SYMB", 7, "Continuous", 25, "pinned-support symbols")
     TEXT = LayerSpec("S-ANNO-TEXT", 7, "Continuous", 25, "frame titles and verdict lines")

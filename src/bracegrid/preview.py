@@ -56,9 +56,10 @@ def render_preview(sheet: DrawnSheet, fmt: PreviewFormat, *, dpi: int = 150) -> 
     import matplotlib
 
     matplotlib.use("Agg")
-    from ezdxf.addons.drawing import Frontend, RenderContext
     from ezdxf.addons.drawing.config import BackgroundPolicy, ColorPolicy, Configuration, LineweightPolicy
+    from ezdxf.addons.drawing.frontend import Frontend
     from ezdxf.addons.drawing.matplotlib import MatplotlibBackend
+    from ezdxf.addons.drawing.properties import RenderContext
     from matplotlib.figure import Figure
 
     w_mm, h_mm = sheet.plan.paper

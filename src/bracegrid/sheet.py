@@ -26,7 +26,7 @@ from bracegrid.symbols import (
 from bracegrid.units import format_length_m
 
 if TYPE_CHECKING:
-    from ezdxf.layouts import Modelspace
+    from ezdxf.layouts.layout import Modelspace
 
 #: ISO 216 landscape sheets, paper mm, smallest first.
 SHEETS: tuple[tuple[str, float, float], ...] = (
@@ -192,12 +192,12 @@ class Pen:
         pts = [self.at(x, y), self.at(x + w, y), self.at(x + w, y + h), self.at(x, y + h)]
         self.msp.add_lwpolyline(pts, close=True, dxfattribs={"layer": layer.layer_name, **attribs})
 
-    def block(self, name: str, x: float, y: float, layer: Layer, *, rotation: float = 0.0) -> None:
+    def block(self, name: str, x: float, y: float, layer: Layer, **attribs: Any) -> None:
         """Insert a paper-size block."""
         self.msp.add_blockref(
             name,
             self.at(x, y),
-            dxfattribs={"layer": layer.layer_name, "xscale": self.scale, "yscale": self.scale, "rotation": rotation},
+            dxfattribs={"layer": layer.layer_name, "xscale": self.scale, "yscale": self.scale, **attribs},
         )
 
 
@@ -236,44 +236,61 @@ def draw_legend(pen: Pen, x: float, y: float) -> None:
     for k, (key, words) in enumerate(rows):
         cy = y + h - 9.5 - k * _LEGEND_ROW
         x0, x1 = x + 3, x + 15
+        # Samples sit on the legend layer with the look of the layer they explain,
+        # so the drawing layers hold only what is drawn on the frames.
         if key in {"brace-new", "brace-old", "tie-new", "tie-old"}:
             layer = member_layer(brace=key.startswith("brace"), existing=key.endswith("old"))
-            pen.line((x0, cy), (x1, cy), layer)
+            pen.line((x0, cy), (x1, cy), lay, **_look(layer))
         elif key in {"cw", "acw"}:
-            pen.line((x0, cy - 1.6), (x1, cy + 1.6), member_layer(brace=False, existing=False))
-            pen.block(TIE_CW_BLOCK if key == "cw" else TIE_ACW_BLOCK, (x0 + x1) / 2, cy, Layer.TIE_SENSE)
+            pen.line((x0, cy - 1.6), (x1, cy + 1.6), lay, **_look(member_layer(brace=False, existing=False)))
+            pen.block(TIE_CW_BLOCK if key == "cw" else TIE_ACW_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.TIE_SENSE))
         elif key == "crit":
-            pen.line((x0, cy - 1.6), (x1, cy + 1.6), member_layer(brace=True, existing=False))
-            pen.block(CRITICAL_BLOCK, (x0 + x1) / 2, cy, Layer.CRITICAL)
+            pen.line((x0, cy - 1.6), (x1, cy + 1.6), lay, **_look(member_layer(brace=True, existing=False)))
+            pen.block(CRITICAL_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.CRITICAL))
         elif key == "blocked":
             _hatch_rect(pen, x0, cy - 1.8, x1 - x0, 3.6, Layer.OPENING_PATT, pattern=True)
         elif key == "opening":
-            pen.rect(x0, cy - 1.8, x1 - x0, 3.6, Layer.OPENING)
+            pen.rect(x0, cy - 1.8, x1 - x0, 3.6, lay, **_look(Layer.OPENING))
         elif key == "loose":
             _hatch_rect(pen, x0, cy - 1.8, x1 - x0, 3.6, Layer.LOOSE, pattern=False)
         elif key == "support":
-            pen.line((x0, cy + 1.5), (x1, cy + 1.5), Layer.SUPPORT)
-            pen.block(SUPPORT_BLOCK, (x0 + x1) / 2, cy + 1.5, Layer.SUPPORT_SYMBOL)
+            pen.line((x0, cy + 1.5), (x1, cy + 1.5), lay, **_look(Layer.SUPPORT))
+            pen.block(SUPPORT_BLOCK, (x0 + x1) / 2, cy + 1.5, lay, **_look(Layer.SUPPORT_SYMBOL))
         elif key == "bubble":
-            pen.block(BUBBLE_BLOCK, (x0 + x1) / 2, cy, Layer.GRID_LABEL)
-            pen.text("R1", (x0 + x1) / 2, cy, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
+            pen.block(BUBBLE_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.GRID_LABEL))
+            pen.text("R1", (x0 + x1) / 2, cy, height=H_SMALL, layer=lay, align="MIDDLE_CENTER")
         else:
-            pen.line((x0, cy), (x1, cy), Layer.GRID)
+            pen.line((x0, cy), (x1, cy), lay, **_look(Layer.GRID))
         pen.text(words, x1 + 3, cy, height=H_SMALL, layer=lay, align="MIDDLE_LEFT")
 
 
-def _hatch_rect(pen: Pen, x: float, y: float, w: float, h: float, layer: Layer, *, pattern: bool) -> None:
+def _look(layer: Layer) -> dict[str, Any]:
+    """Colour, linetype and lineweight of a layer, as entity overrides."""
+    spec = layer.spec
+    return {"color": spec.color, "linetype": spec.linetype, "lineweight": spec.lineweight}
+
+
+def _hatch_rect(pen: Pen, x: float, y: float, w: float, h: float, look: Layer, *, pattern: bool) -> None:
+    """A legend sample of a hatch: on the legend layer, coloured like ``look``."""
     pts = [pen.at(x, y), pen.at(x + w, y), pen.at(x + w, y + h), pen.at(x, y + h)]
-    add_hatch(pen.msp, pts, layer, scale=pen.scale, pattern=pattern)
+    add_hatch(pen.msp, pts, Layer.LEGEND, scale=pen.scale, pattern=pattern, color=look.spec.color)
 
 
-def add_hatch(msp: Modelspace, points: Sequence[tuple[float, float]], layer: Layer, *, scale: float, pattern: bool) -> None:
-    """A hatch over a polygon (model points): 45-degree lines or a light see-through fill."""
+def add_hatch(
+    msp: Modelspace,
+    points: Sequence[tuple[float, float]],
+    layer: Layer,
+    *,
+    scale: float,
+    pattern: bool,
+    color: int = 256,
+) -> None:
+    """A hatch over a polygon (model points): 45-degree lines, or a pale fill."""
     if pattern:
-        hatch = msp.add_hatch(dxfattribs={"layer": layer.layer_name})
-        hatch.set_pattern_fill("ANSI31", scale=0.55 * scale)
+        hatch = msp.add_hatch(color=color, dxfattribs={"layer": layer.layer_name})
+        hatch.set_pattern_fill("ANSI31", scale=0.55 * scale, color=color)
     else:
-        hatch = msp.add_hatch(color=256, dxfattribs={"layer": layer.layer_name})
+        hatch = msp.add_hatch(color=color, dxfattribs={"layer": layer.layer_name})
         hatch.rgb = (255, 226, 190)  # light: prints as a pale grey in black and white
     hatch.paths.add_polyline_path(points, is_closed=True)
 
