@@ -40,3 +40,22 @@ def braced_quayside() -> Project:
         end_members.append(Member(r, 1, T, RISE, existing=r > 6))
         end_members.append(Member(r, 1, T, FALL, existing=False))
     return replace(project, frames=(replace(face, members=tuple(members)), replace(end, members=tuple(end_members))))
+
+
+def loose_deck() -> Project:
+    """A free-standing 4 x 3 deck plan with too few members: loose parts made of rows and of columns.
+
+    By the directed-cycle criterion: brace (1,1) joins row 1 and column 1; the rising
+    tie (2,1) gives row 2 <= column 1 only and the brace (2,2) joins row 2 and column 2,
+    so {row 2, column 2} racks one way only; row 3 and columns 3 and 4 are untouched
+    and rack both ways.
+    """
+    from bracegrid.model import CostCatalogue, Frame
+
+    members = (
+        Member(1, 1, B, RISE),
+        Member(2, 1, T, RISE),
+        Member(2, 2, B, FALL, existing=False),
+    )
+    frame = Frame("deck plan", (3000, 3000, 4500, 3000), (2500, 2500, 2500), members=members)
+    return Project("Loose deck (invented)", (frame,), costs=CostCatalogue())

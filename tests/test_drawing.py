@@ -28,7 +28,7 @@ from bracegrid.loading import load_project
 from bracegrid.model import Diagonal, MemberKind, Supports
 from bracegrid.report import CAUTION
 from bracegrid.symbols import CRITICAL_BLOCK, SUPPORT_BLOCK, TIE_ACW_BLOCK, TIE_CW_BLOCK
-from drawing_cases import ORCHARD, QUAYSIDE, braced_quayside
+from drawing_cases import ORCHARD, QUAYSIDE, braced_quayside, loose_deck
 
 WHEN = date(2026, 12, 1)
 
@@ -56,7 +56,13 @@ def orchard(tmp_path_factory: pytest.TempPathFactory) -> tuple[DrawnSheet, Drawi
     return sheet, _write_and_read(sheet, tmp_path_factory.mktemp("dxf"), "orchard")
 
 
-CASES = ["braced", "unbraced", "orchard"]
+@pytest.fixture(scope="module")
+def deck(tmp_path_factory: pytest.TempPathFactory) -> tuple[DrawnSheet, Drawing]:
+    sheet = build_drawing(loose_deck(), when=WHEN)
+    return sheet, _write_and_read(sheet, tmp_path_factory.mktemp("dxf"), "deck")
+
+
+CASES = ["braced", "unbraced", "orchard", "deck"]
 
 
 @pytest.fixture(params=CASES)
@@ -134,6 +140,16 @@ def test_unbraced_face_is_shaded_loose_every_lift(unbraced: tuple[DrawnSheet, Dr
     assert sum(1 for t in tags if t.endswith("both ways")) == 16  # 8 lifts on each of the two frames
 
 
+def test_loose_deck_parts_tagged(deck: tuple[DrawnSheet, Drawing]) -> None:
+    # Expected parts derived by hand in drawing_cases.loose_deck (directed-cycle criterion).
+    sheet, doc = deck
+    parts = sheet.frames[0].verdict.loose_parts
+    assert sorted((p.rows, p.columns) for p in parts) == [((), (3,)), ((), (4,)), ((2,), (2,)), ((3,), ())]
+    tags = {e.dxf.text for e in _entities(doc, Layer.LOOSE, "TEXT")}
+    assert any(t.endswith("anticlockwise only") or t.endswith("clockwise only") for t in tags)
+    assert sum(1 for t in tags if t.endswith("(C3)") or t.endswith("(C4)")) == 2
+
+
 def test_diagonal_endpoints_are_bay_corners(case: tuple[DrawnSheet, Drawing]) -> None:
     # Independent reference: bay corners from numpy cumulative sums of the input sizes.
     sheet, doc = case
@@ -205,8 +221,8 @@ def _text_boxes(doc: Drawing) -> list[tuple[str, bbox.BoundingBox]]:
     return out
 
 
-@pytest.mark.parametrize("name", ["braced", "unbraced"])
-def test_no_two_labels_overlap_on_the_12_by_8_face(name: str, request: pytest.FixtureRequest) -> None:
+@pytest.mark.parametrize("name", ["braced", "unbraced", "deck"])
+def test_no_two_labels_overlap(name: str, request: pytest.FixtureRequest) -> None:
     # The issue asks for no overlapping labels on a 12 x 8 frame; text extents from ezdxf's bbox module.
     _, doc = request.getfixturevalue(name)
     boxes = _text_boxes(doc)

@@ -1,6 +1,8 @@
 """bracegrid: minimum-cost, proven-stable diagonal bracing of rectangular frames."""
 
 from bracegrid._version import __version__
+from bracegrid.bom import Bom, build_bom, render_bom_csv
+from bracegrid.drawing import DrawnSheet, build_drawing, write_dxf
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.geometry import blocked_bays
 from bracegrid.loading import load_project, parse_member_refs, parse_project
@@ -18,14 +20,17 @@ from bracegrid.model import (
     Supports,
     Verdict,
 )
+from bracegrid.preview import PreviewFormat, render_preview, write_preview
 from bracegrid.rigidity import check_frame, check_layout, find_critical_members, is_stable
 from bracegrid.saving import render_project, save_project
 
 __all__ = [
+    "Bom",
     "BraceGridError",
     "CostCatalogue",
     "CostRate",
     "Diagonal",
+    "DrawnSheet",
     "ExportError",
     "Frame",
     "InfeasibleError",
@@ -34,6 +39,7 @@ __all__ = [
     "Member",
     "MemberKind",
     "Opening",
+    "PreviewFormat",
     "Project",
     "Racking",
     "SolverLimitError",
@@ -41,6 +47,8 @@ __all__ = [
     "Verdict",
     "__version__",
     "blocked_bays",
+    "build_bom",
+    "build_drawing",
     "check_frame",
     "check_layout",
     "find_critical_members",
@@ -48,6 +56,10 @@ __all__ = [
     "load_project",
     "parse_member_refs",
     "parse_project",
+    "render_bom_csv",
+    "render_preview",
     "render_project",
     "save_project",
+    "write_dxf",
+    "write_preview",
 ]

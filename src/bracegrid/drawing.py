@@ -110,6 +110,16 @@ def _part_tag(index: int, racking: Racking) -> str:
     return f"L{index} {words.get(racking, 'anticlockwise only')}"
 
 
+def _column_part_notes(verdict: Verdict) -> list[str]:
+    """Explanations of loose parts made of columns only (tagged above the frame)."""
+    notes = []
+    for k, part in enumerate(verdict.loose_parts, start=1):
+        if not part.rows:
+            cols = ", ".join(f"C{c}" for c in part.columns)
+            notes.append(f"{_part_tag(k, part.racking)} ({cols})")
+    return notes
+
+
 def _bottom_zone(frame: Frame) -> tuple[float, float, float]:
     """y of the column bubbles, width chain and overall chain below the frame, paper mm."""
     drop = _SUPPORT_DROP if frame.supports is Supports.BASE else 0.0
@@ -121,12 +131,14 @@ def _bottom_zone(frame: Frame) -> tuple[float, float, float]:
 def _margins(fs: FrameSheet, heading_width: float) -> Margins:
     """Annotation room; ``heading_width`` is what the frame outline plus right margin must cover."""
     parts = fs.verdict.loose_parts
-    tags = [_part_tag(k, p.racking) for k, p in enumerate(parts, start=1)]
+    tags = [_part_tag(k, p.racking) for k, p in enumerate(parts, start=1)] + _column_part_notes(fs.verdict)
     right = 4.0 + max((text_width(t, H_SMALL) for t in tags), default=0.0) if tags else 3.0
     column_only = any(not p.rows for p in parts)
     _, _, overall = _bottom_zone(fs.frame)
     top = 16.0 + (4.0 if column_only else 0.0)
-    return Margins(left=-_OVERALL_X + 4.0, right=right, bottom=-overall + 4.0, top=top, min_width=heading_width)
+    notes = len(_column_part_notes(fs.verdict))
+    bottom = max(-overall + 4.0, 3.0 + 3.5 * notes + 2.0)
+    return Margins(left=-_OVERALL_X + 4.0, right=right, bottom=bottom, top=top, min_width=heading_width)
 
 
 def _box(fs: FrameSheet) -> FrameBox:
@@ -191,6 +203,9 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
             c = part.columns[0]
             pen.text(f"L{k}", (xs[c - 1] + xs[c]) / 2 / scale, h / scale + 1.5, height=H_SMALL, layer=Layer.LOOSE,
                      align="BOTTOM_CENTER")  # fmt: skip
+    # column-only parts are explained in the right margin below the frame
+    for line, text in enumerate(_column_part_notes(v)):
+        pen.text(text, w / scale + 2.0, -3.0 - line * 3.5, height=H_SMALL, layer=Layer.LOOSE, align="MIDDLE_LEFT")
     # blocked bays and openings
     listed = f.blocked
     for r, c in sorted(fs.blocked):
