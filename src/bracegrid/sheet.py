@@ -203,13 +203,30 @@ class Pen:
 
 # --------------------------------------------------------------------------- legend
 
-_LEGEND_ROWS = 13
 _LEGEND_ROW = 4.6
+#: Rows needing more height than the others (support symbol, grid bubble).
+_LEGEND_TALL = {"support": 5.6, "bubble": 7.6}
+_LEGEND_ROWS: tuple[tuple[str, str], ...] = (
+    ("brace-new", "rigid brace, proposed (heavy, solid)"),
+    ("brace-old", "rigid brace, existing (light, solid)"),
+    ("tie-new", "tension-only tie, proposed (heavy, dashed)"),
+    ("tie-old", "tension-only tie, existing (light, dashed)"),
+    ("cw", "tie resists clockwise racking (row top sways right)"),
+    ("acw", "tie resists anticlockwise racking (row top sways left)"),
+    ("crit", "critical member: its loss leaves a mechanism"),
+    ("blocked", "blocked bay: no member may go there"),
+    ("opening", "opening outline, named"),
+    ("loose", "loose part: can still rack (tag gives the sense)"),
+    ("support", "pinned support on the ground line"),
+    ("bubble", "R = row (R1 at the bottom), C = column (C1 at the left)"),
+    ("grid", "grid line (member centre line)"),
+)
 
 
 def legend_size() -> tuple[float, float]:
     """Width and height of the legend, paper mm."""
-    return (96.0, 7.0 + _LEGEND_ROWS * _LEGEND_ROW)
+    rows = sum(_LEGEND_TALL.get(key, _LEGEND_ROW) for key, _ in _LEGEND_ROWS)
+    return (96.0, 9.0 + rows)
 
 
 def draw_legend(pen: Pen, x: float, y: float) -> None:
@@ -218,23 +235,10 @@ def draw_legend(pen: Pen, x: float, y: float) -> None:
     lay = Layer.LEGEND
     pen.rect(x, y, w, h, lay)
     pen.text("LEGEND", x + 2, y + h - 4.5, height=H_LABEL, layer=lay)
-    rows: list[tuple[str, str]] = [
-        ("brace-new", "rigid brace, proposed (heavy, solid)"),
-        ("brace-old", "rigid brace, existing (light, solid)"),
-        ("tie-new", "tension-only tie, proposed (heavy, dashed)"),
-        ("tie-old", "tension-only tie, existing (light, dashed)"),
-        ("cw", "tie resists clockwise racking (row top sways right)"),
-        ("acw", "tie resists anticlockwise racking (row top sways left)"),
-        ("crit", "critical member: its loss leaves a mechanism"),
-        ("blocked", "blocked bay: no member may go there"),
-        ("opening", "opening outline, named"),
-        ("loose", "loose part: can still rack (tag gives the sense)"),
-        ("support", "pinned support on the ground line"),
-        ("bubble", "R = row (R1 at the bottom), C = column (C1 at the left)"),
-        ("grid", "grid line (member centre line)"),
-    ]
-    for k, (key, words) in enumerate(rows):
-        cy = y + h - 9.5 - k * _LEGEND_ROW
+    cy = y + h - 7.0
+    for key, words in _LEGEND_ROWS:
+        step = _LEGEND_TALL.get(key, _LEGEND_ROW)
+        cy -= step / 2
         x0, x1 = x + 3, x + 15
         # Samples sit on the legend layer with the look of the layer they explain,
         # so the drawing layers hold only what is drawn on the frames.
@@ -254,14 +258,15 @@ def draw_legend(pen: Pen, x: float, y: float) -> None:
         elif key == "loose":
             _hatch_rect(pen, x0, cy - 1.8, x1 - x0, 3.6, Layer.LOOSE, pattern=False)
         elif key == "support":
-            pen.line((x0, cy + 1.5), (x1, cy + 1.5), lay, **_look(Layer.SUPPORT))
-            pen.block(SUPPORT_BLOCK, (x0 + x1) / 2, cy + 1.5, lay, **_look(Layer.SUPPORT_SYMBOL))
+            pen.line((x0, cy + 2.0), (x1, cy + 2.0), lay, **_look(Layer.SUPPORT))
+            pen.block(SUPPORT_BLOCK, (x0 + x1) / 2, cy + 2.0, lay, **_look(Layer.SUPPORT_SYMBOL))
         elif key == "bubble":
             pen.block(BUBBLE_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.GRID_LABEL))
             pen.text("R1", (x0 + x1) / 2, cy, height=H_SMALL, layer=lay, align="MIDDLE_CENTER")
         else:
             pen.line((x0, cy), (x1, cy), lay, **_look(Layer.GRID))
         pen.text(words, x1 + 3, cy, height=H_SMALL, layer=lay, align="MIDDLE_LEFT")
+        cy -= step / 2
 
 
 def _look(layer: Layer) -> dict[str, Any]:

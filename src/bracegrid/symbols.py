@@ -31,7 +31,7 @@ BUBBLE_BLOCK = "BG_GRID_BUBBLE"
 #: Radius of a grid bubble, paper mm.
 BUBBLE_RADIUS = 3.2
 #: Radius of the tie-sense curl, paper mm.
-SENSE_RADIUS = 1.7
+SENSE_RADIUS = 1.9
 
 # Linetype patterns in paper mm: positive dash, negative gap, 0 dot.
 _LINETYPES: dict[str, tuple[str, tuple[float, ...]]] = {
@@ -63,7 +63,7 @@ def _sense_block(doc: Drawing, name: str, *, clockwise: bool) -> None:
     block.add_arc((0, 0), r, start, end, dxfattribs=attribs)
     angle = math.radians(head_deg)
     tip = (r * math.cos(angle) + 0.9 * math.cos(tangent), r * math.sin(angle) + 0.9 * math.sin(tangent))
-    a, b, c = _arrow_head(tip, tangent, 1.4)
+    a, b, c = _arrow_head(tip, tangent, 1.6)
     block.add_solid([a, b, c], dxfattribs=attribs)
 
 
