@@ -305,7 +305,7 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     allow: set[MemberKind] = set()
     raw_allow = table.get("allow", ["brace", "tie"])
     if not isinstance(raw_allow, list) or not raw_allow:
-        col.add(f"{where}.allow", f"expected a non-empty list such as [\"brace\", \"tie\"], got {raw_allow!r}")
+        col.add(f"{where}.allow", f'expected a non-empty list such as ["brace", "tie"], got {raw_allow!r}')
     else:
         for k, item in enumerate(raw_allow, start=1):
             kind = _read_enum(col, f"{where}.allow[{k}]", item, MemberKind)
@@ -338,9 +338,9 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     for k, item in enumerate(raw_members):
         at = _Lines.at(lines.members[index], k) if index < len(lines.members) else ""
         here = f"{at}frame {name!r} member #{k + 1}"
-        got = _read_member(col, here, item, rows, cols)
-        if got is not None:
-            members.append(got)
+        member = _read_member(col, here, item, rows, cols)
+        if member is not None:
+            members.append(member)
             member_where.append(here)
     if (
         name is None
@@ -383,8 +383,11 @@ def _check_members(col: _Collector, frame: Frame, where: list[str]) -> None:
             )
         key = (member.row, member.col, member.diagonal)
         if key in seen:
-            col.add(here, f"the {member.diagonal.value} diagonal of bay r{member.row}c{member.col} already holds "
-                    f"a member ({seen[key]}); one member per diagonal")
+            col.add(
+                here,
+                f"the {member.diagonal.value} diagonal of bay r{member.row}c{member.col} already holds "
+                f"a member ({seen[key]}); one member per diagonal",
+            )
         else:
             seen[key] = here
 

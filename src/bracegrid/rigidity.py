@@ -21,12 +21,13 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from operator import attrgetter
 
 import networkx as nx
 import numpy as np
 import numpy.typing as npt
 from scipy.sparse import csr_matrix
-from scipy.sparse.csgraph import breadth_first_order, connected_components, dijkstra
+from scipy.sparse.csgraph import breadth_first_order, connected_components, dijkstra, maximum_flow
 
 from bracegrid.model import (
     Diagonal,
@@ -48,31 +49,47 @@ class ArcSet:
     """The distinct arcs of a frame's digraph with the members behind them.
 
     Nodes: row i (1-based) is ``i - 1``, column j is ``R + j - 1``, the ground
-    (pinned base only) is ``R + C``.
+    (pinned base only) is ``R + C``. An arc's key is ``tail * nodes + head``.
 
     Attributes:
         nodes: Number of nodes.
-        src: Tail of each distinct arc.
+        src: Tail of each distinct arc (sorted by key).
         dst: Head of each distinct arc.
         multiplicity: Members giving each arc (ground arcs count as 2: never lost).
-        member_arcs: For each member, the distinct-arc indices it gives
-            (-1 where a brace's second arc is absent for a tie), shape (M, 2).
+        member_keys: For each member, the keys of the arcs it gives, shape
+            (M, 2): column 0 the row->col arc, column 1 the col->row arc, -1
+            where the member gives no such arc.
+        braces: Number of rigid braces among the members.
     """
 
     nodes: int
     src: IntArray
     dst: IntArray
     multiplicity: IntArray
-    member_arcs: IntArray
+    member_keys: IntArray
+    braces: int
+
+    @property
+    def keys(self) -> IntArray:
+        """Sorted keys of the distinct arcs."""
+        return self.src * self.nodes + self.dst
+
+
+def _ids(values: Iterable[object], count: int) -> IntArray:
+    return np.fromiter(map(id, values), dtype=np.int64, count=count)
 
 
 def member_arrays(members: Sequence[Member]) -> tuple[IntArray, IntArray, BoolArray, BoolArray]:
-    """Rows, columns, is-brace and is-rising of members as numpy arrays (1-based bays)."""
+    """Rows, columns, is-brace and is-rising of members as numpy arrays (1-based bays).
+
+    Enum members are singletons, so identity (``id``) comparison is exact and
+    keeps the conversion at C speed for a million members.
+    """
     n = len(members)
-    rows = np.fromiter((m.row for m in members), dtype=np.int64, count=n)
-    cols = np.fromiter((m.col for m in members), dtype=np.int64, count=n)
-    brace = np.fromiter((m.kind is MemberKind.BRACE for m in members), dtype=np.bool_, count=n)
-    rising = np.fromiter((m.diagonal is Diagonal.RISING for m in members), dtype=np.bool_, count=n)
+    rows = np.fromiter(map(attrgetter("row"), members), dtype=np.int64, count=n)
+    cols = np.fromiter(map(attrgetter("col"), members), dtype=np.int64, count=n)
+    brace = _ids(map(attrgetter("kind"), members), n) == id(MemberKind.BRACE)
+    rising = _ids(map(attrgetter("diagonal"), members), n) == id(Diagonal.RISING)
     return rows, cols, brace, rising
 
 
@@ -88,42 +105,32 @@ def build_arcs(frame: Frame, members: Sequence[Member]) -> ArcSet:
     """
     r_count, c_count = frame.rows, frame.cols
     rows, cols, brace, rising = member_arrays(members)
+    nodes = r_count + c_count + (1 if frame.supports is Supports.BASE else 0)
     row_node = rows - 1
     col_node = r_count + cols - 1
     # Up arc row->col: brace or rising tie. Down arc col->row: brace or falling tie.
-    up = brace | rising
-    down = brace | ~rising
-    m = len(members)
-    idx = np.arange(m)
-    tails = [row_node[up], col_node[down]]
-    heads = [col_node[up], row_node[down]]
-    owners = [idx[up], idx[down]]
-    slot = [np.zeros(int(up.sum()), dtype=np.int64), np.ones(int(down.sum()), dtype=np.int64)]
-    nodes = r_count + c_count
+    up_key = np.where(brace | rising, row_node * nodes + col_node, -1)
+    down_key = np.where(brace | ~rising, col_node * nodes + row_node, -1)
+    parts = [up_key[up_key >= 0], down_key[down_key >= 0]]
     if frame.supports is Supports.BASE:
-        ground = nodes
-        nodes += 1
+        ground = nodes - 1
         cnodes = np.arange(r_count, r_count + c_count, dtype=np.int64)
-        gnodes = np.full(c_count, ground, dtype=np.int64)
-        none = np.full(c_count, -1, dtype=np.int64)
-        for _ in range(2):  # each ground arc twice: it can never be lost
-            tails += [gnodes, cnodes]
-            heads += [cnodes, gnodes]
-            owners += [none, none]
-            slot += [none, none]
-    tail, head = np.concatenate(tails), np.concatenate(heads)
-    owner, which = np.concatenate(owners), np.concatenate(slot)
-    key = tail * nodes + head
-    unique, inverse, counts = np.unique(key, return_inverse=True, return_counts=True)
-    member_arcs = np.full((m, 2), -1, dtype=np.int64)
-    real = owner >= 0
-    member_arcs[owner[real], which[real]] = inverse[real]
+        ground_keys = np.concatenate([ground * nodes + cnodes, cnodes * nodes + ground])
+        parts += [ground_keys, ground_keys]  # twice: a ground arc can never be lost
+    all_keys = np.concatenate(parts)
+    counts = np.bincount(all_keys, minlength=0) if nodes * nodes <= 4 * len(all_keys) + 1024 else None
+    if counts is not None:
+        unique = np.flatnonzero(counts)
+        mult = counts[unique]
+    else:
+        unique, mult = np.unique(all_keys, return_counts=True)
     return ArcSet(
         nodes=nodes,
         src=(unique // nodes).astype(np.int64),
         dst=(unique % nodes).astype(np.int64),
-        multiplicity=counts.astype(np.int64),
-        member_arcs=member_arcs,
+        multiplicity=mult.astype(np.int64),
+        member_keys=np.stack([up_key, down_key], axis=1),
+        braces=int(brace.sum()),
     )
 
 
@@ -236,31 +243,66 @@ def _loose_parts(frame: Frame, arcs: ArcSet, count: int, labels: IntArray) -> tu
 
 def _tree_arcs(arcs: ArcSet, root: int, heavy: BoolArray, *, reverse: bool) -> BoolArray:
     """Arcs of a shortest-path tree from (or, reversed, into) root avoiding heavy arcs."""
-    big = float(arcs.nodes + 1)
-    weight = np.where(heavy, big, 1.0)
+    weight = np.where(heavy, float(arcs.nodes + 1), 1.0)
     src, dst = (arcs.dst, arcs.src) if reverse else (arcs.src, arcs.dst)
     graph = csr_matrix((weight, (src, dst)), shape=(arcs.nodes, arcs.nodes))
     _, pred = dijkstra(graph, directed=True, indices=root, return_predecessors=True)
     child = np.flatnonzero(pred >= 0)
     parent = pred[child].astype(np.int64)
-    # Map (parent -> child) in the traversed orientation back to arc indices.
     tail, head = (child, parent) if reverse else (parent, child)
-    key = arcs.src * arcs.nodes + arcs.dst
-    order = np.argsort(key)
-    pos = order[np.searchsorted(key[order], tail * arcs.nodes + head)]
     used = np.zeros(len(arcs.src), dtype=bool)
-    used[pos] = True
+    used[np.searchsorted(arcs.keys, tail * arcs.nodes + head)] = True
     return used
+
+
+def _flowgraph_bridges(graph: nx.DiGraph, root: int, single: set[tuple[int, int]]) -> set[tuple[int, int]]:
+    """Bridges of the flowgraph (graph, root): arcs on every path from root to their head.
+
+    An arc (u, v) given once is such a bridge iff u is the immediate dominator
+    of v and v dominates every other predecessor of v (Italiano, Laura and
+    Santaroni, "Finding strong bridges and strong articulation points in
+    linear time", Theor. Comput. Sci. 447:74-84, 2012, doi:10.1016/j.tcs.2011.11.011).
+    """
+    idom = nx.immediate_dominators(graph, root)
+    children: dict[int, list[int]] = {}
+    for v, u in idom.items():
+        if v != u:
+            children.setdefault(u, []).append(v)
+    # Pre/post numbers of the dominator tree: v dominates w iff pre[v] <= pre[w] and post[w] <= post[v].
+    pre: dict[int, int] = {}
+    post: dict[int, int] = {}
+    clock = 0
+    stack: list[tuple[int, bool]] = [(root, False)]
+    while stack:
+        v, done = stack.pop()
+        if done:
+            post[v] = clock
+            clock += 1
+            continue
+        pre[v] = clock
+        clock += 1
+        stack.append((v, True))
+        stack.extend((c, False) for c in children.get(v, ()))
+    out: set[tuple[int, int]] = set()
+    for v, u in idom.items():
+        if v == u or (u, v) not in single:
+            continue
+        if all(w == u or (pre[v] <= pre[w] and post[w] <= post[v]) for w in graph.predecessors(v)):
+            out.add((u, v))
+    return out
 
 
 def strong_bridges(arcs: ArcSet) -> BoolArray:
     """Arcs whose single loss breaks strong connectivity of a strongly connected digraph.
 
-    Candidates start as the arcs given by one member only; an arc missing
-    from some pair of spanning trees (one out of, one into a root) cannot be
-    a bridge, so trees that avoid the candidates are grown repeatedly until
-    the set stops shrinking. Each remaining candidate is then tested by a
-    strong-components run without it (linear each).
+    Candidates start as the arcs given by one member only. An arc missing from
+    some pair of spanning trees (one out of, one into a root) cannot be a
+    bridge, so trees that avoid the candidates are grown until the set stops
+    shrinking (this clears dense layouts in a few sparse-graph passes). Few
+    remaining candidates are tested one by one (a strong-components run each);
+    many are settled at once with dominator trees: the strong bridges are the
+    bridges of the flowgraphs of G and of its reverse from any root (Italiano,
+    Laura and Santaroni 2012, doi:10.1016/j.tcs.2011.11.011).
 
     Args:
         arcs: A strongly connected arc set.
@@ -277,13 +319,34 @@ def strong_bridges(arcs: ArcSet) -> BoolArray:
             break
         cand = new
     bridges = np.zeros(len(arcs.src), dtype=bool)
-    keep = np.ones(len(arcs.src), dtype=bool)
-    for e in np.flatnonzero(cand):
-        keep[e] = False
-        count, _ = _strong_labels(arcs, keep)
-        keep[e] = True
-        bridges[e] = count > 1
+    if cand.sum() <= 32:
+        keep = np.ones(len(arcs.src), dtype=bool)
+        for e in np.flatnonzero(cand):
+            keep[e] = False
+            count, _ = _strong_labels(arcs, keep)
+            keep[e] = True
+            bridges[e] = count > 1
+        return bridges
+    graph: nx.DiGraph = nx.DiGraph()
+    graph.add_nodes_from(range(arcs.nodes))
+    pairs = list(zip(arcs.src.tolist(), arcs.dst.tolist(), strict=True))
+    graph.add_edges_from(pairs)
+    single = {pairs[e] for e in np.flatnonzero(cand).tolist()}
+    found = _flowgraph_bridges(graph, root, single)
+    reversed_single = {(v, u) for u, v in single}
+    found |= {(v, u) for u, v in _flowgraph_bridges(graph.reverse(copy=False), root, reversed_single)}
+    if found:
+        keys = np.array(sorted(u * arcs.nodes + v for u, v in found), dtype=np.int64)
+        bridges[np.searchsorted(arcs.keys, keys)] = True
     return bridges
+
+
+def _critical(arcs: ArcSet, layout: Sequence[Member]) -> tuple[Member, ...]:
+    bridges = strong_bridges(arcs)
+    if not bridges.any() or not layout:
+        return ()
+    hit = np.isin(arcs.member_keys, arcs.keys[bridges]).any(axis=1)
+    return tuple(layout[i] for i in np.flatnonzero(hit).tolist())
 
 
 def find_critical_members(frame: Frame, members: Sequence[Member] | None = None) -> tuple[Member, ...]:
@@ -306,15 +369,7 @@ def find_critical_members(frame: Frame, members: Sequence[Member] | None = None)
     layout = tuple(frame.members if members is None else members)
     arcs = build_arcs(frame, layout)
     count, _ = _strong_labels(arcs)
-    if count != 1 or not layout:
-        return ()
-    bridges = strong_bridges(arcs)
-    ma = arcs.member_arcs
-    hit = np.zeros(len(layout), dtype=bool)
-    for k in range(2):
-        valid = ma[:, k] >= 0
-        hit[valid] |= bridges[ma[valid, k]]
-    return tuple(layout[i] for i in np.flatnonzero(hit))
+    return _critical(arcs, layout) if count == 1 else ()
 
 
 def remove_members(frame: Frame, without: Iterable[Member]) -> tuple[Member, ...]:
@@ -343,7 +398,7 @@ def check_layout(frame: Frame, members: Sequence[Member], *, removed: tuple[Memb
     anchor_rows = tuple(int(n) + 1 for n in anchor_nodes if n < frame.rows)
     anchor_cols = tuple(int(n) - frame.rows + 1 for n in anchor_nodes if frame.rows <= n < frame.rows + frame.cols)
     stable = count == 1
-    braces = sum(1 for m in layout if m.kind is MemberKind.BRACE)
+    braces = arcs.braces
     needed = frame.rows if frame.supports is Supports.BASE else frame.rows + frame.cols - 1
     return Verdict(
         frame=frame.name,
@@ -352,7 +407,7 @@ def check_layout(frame: Frame, members: Sequence[Member], *, removed: tuple[Memb
         loose_parts=tuple(parts),
         anchor_rows=anchor_rows,
         anchor_columns=anchor_cols,
-        critical_members=find_critical_members(frame, layout) if stable else (),
+        critical_members=_critical(arcs, layout) if stable else (),
         braces=braces,
         ties=len(layout) - braces,
         maxwell_needed=needed,
@@ -389,3 +444,52 @@ def count_racking_modes(frame: Frame, members: Sequence[Member] | None = None) -
     layout = frame.members if members is None else members
     count, _ = _strong_labels(build_arcs(frame, layout))
     return count - 1
+
+
+def redundancy_of(frame: Frame, members: Sequence[Member] | None = None, *, at_most: int = 8) -> int:
+    """How many members a layout can lose, any of them, and stay stable.
+
+    Each member gives at most one arc across a cut in each direction, so the
+    layout survives the loss of any k members iff every directed cut is crossed
+    by at least k + 1 member arcs (Menger's theorem; Edmonds' branching
+    theorem for the directed case). The smallest such crossing is the arc
+    connectivity of the member multigraph: the least of the maximum flows from
+    one node to every other and back, with each arc's capacity the number of
+    members giving it (ground arcs never fail).
+
+    Args:
+        frame: Sizes and supports; its own members unless ``members`` is given.
+        members: The layout.
+        at_most: Stop counting above this (the flows are cut short there).
+
+    Returns:
+        -1 if the layout is not stable, else the largest k (capped at ``at_most``)
+        such that the layout survives the loss of any k members.
+
+    Example:
+        >>> from bracegrid.model import Frame, Member, MemberKind, Diagonal
+        >>> f = Frame("f", (3000,), (2000,))
+        >>> b = MemberKind.BRACE
+        >>> redundancy_of(f, [Member(1, 1, b, Diagonal.RISING), Member(1, 1, b, Diagonal.FALLING)])
+        1
+    """
+    layout = frame.members if members is None else members
+    arcs = build_arcs(frame, layout)
+    count, _ = _strong_labels(arcs)
+    if count != 1:
+        return -1
+    if arcs.nodes == 1:
+        return at_most
+    cap = at_most + 1
+    capacity = np.minimum(arcs.multiplicity, cap).astype(np.int32)
+    if frame.supports is Supports.BASE:
+        ground = arcs.nodes - 1
+        capacity[(arcs.src == ground) | (arcs.dst == ground)] = cap
+    graph = csr_matrix((capacity, (arcs.src, arcs.dst)), shape=(arcs.nodes, arcs.nodes))
+    best = cap
+    for v in range(1, arcs.nodes):
+        for s, t in ((0, v), (v, 0)):
+            best = min(best, int(maximum_flow(graph, s, t).flow_value))
+            if best == 1:
+                return 0
+    return min(best - 1, at_most)

@@ -116,7 +116,11 @@ def write_atomic(path: str | Path, write: Callable[[IO[bytes]], None]) -> Path:
 def write_text_atomic(path: str | Path, text: str) -> Path:
     """Write UTF-8 text atomically (see :func:`write_atomic`)."""
     data = text.encode("utf-8")
-    return write_atomic(path, lambda handle: handle.write(data) and None)
+
+    def put(handle: IO[bytes]) -> None:
+        handle.write(data)
+
+    return write_atomic(path, put)
 
 
 def save_project(project: Project, path: str | Path) -> Path:

@@ -54,11 +54,11 @@ def parse_length(value: object, *, unit: str = "m") -> int:
     elif isinstance(value, str):
         match = _QUANTITY.match(value)
         if match is None:
-            msg = f"cannot read {value!r} as a length; write e.g. 2.4 or \"2400 mm\""
+            msg = f'cannot read {value!r} as a length; write e.g. 2.4 or "2400 mm"'
             raise ValueError(msg)
         number, name = float(match.group(1)), (match.group(2) or unit).lower()
     else:
-        msg = f"expected a length (number or string such as \"2.4 m\"), got {type(value).__name__}"
+        msg = f'expected a length (number or string such as "2.4 m"), got {type(value).__name__}'
         raise ValueError(msg)
     if name not in MM_PER_UNIT:
         known = ", ".join(MM_PER_UNIT)
