@@ -18,7 +18,7 @@ import pytest
 
 from bracegrid.bom import build_bom, render_bom_csv, resists
 from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Project
-from drawing_cases import braced_quayside
+from tests.drawing_cases import braced_quayside
 
 
 def _reference(project: Project) -> tuple[float, float, float]:

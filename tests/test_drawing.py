@@ -28,7 +28,7 @@ from bracegrid.loading import load_project
 from bracegrid.model import Diagonal, MemberKind, Supports
 from bracegrid.report import CAUTION
 from bracegrid.symbols import CRITICAL_BLOCK, SUPPORT_BLOCK, TIE_ACW_BLOCK, TIE_CW_BLOCK
-from drawing_cases import ORCHARD, QUAYSIDE, braced_quayside, loose_deck
+from tests.drawing_cases import ORCHARD, QUAYSIDE, braced_quayside, loose_deck
 
 WHEN = date(2026, 12, 1)
 

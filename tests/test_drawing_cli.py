@@ -10,7 +10,7 @@ import ezdxf
 import pytest
 
 from bracegrid.cli import EXIT_INPUT, EXIT_OK, main
-from drawing_cases import ORCHARD, QUAYSIDE
+from tests.drawing_cases import ORCHARD, QUAYSIDE
 
 
 def _run(*argv: str) -> tuple[int, str, str]:

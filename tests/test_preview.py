@@ -17,7 +17,7 @@ from matplotlib.image import imread
 from bracegrid.drawing import DrawnSheet, build_drawing
 from bracegrid.loading import load_project
 from bracegrid.preview import PreviewFormat, preview_pixels, render_preview
-from drawing_cases import ORCHARD
+from tests.drawing_cases import ORCHARD
 
 
 @pytest.fixture(scope="module")
