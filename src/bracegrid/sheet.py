@@ -203,9 +203,9 @@ class Pen:
 
 # --------------------------------------------------------------------------- legend
 
-_LEGEND_ROW = 4.6
+_LEGEND_ROW = 4.2
 #: Rows needing more height than the others (support symbol, grid bubble).
-_LEGEND_TALL = {"support": 5.6, "bubble": 7.6}
+_LEGEND_TALL = {"support": 5.2, "bubble": 7.2}
 _LEGEND_ROWS: tuple[tuple[str, str], ...] = (
     ("brace-new", "rigid brace, proposed (heavy, solid)"),
     ("brace-old", "rigid brace, existing (light, solid)"),
