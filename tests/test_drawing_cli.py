@@ -29,6 +29,7 @@ def test_draw_writes_dxf_and_bom(tmp_path: Path) -> None:
     rows = list(csv.DictReader(io.StringIO((tmp_path / "orchard-shed-bom.csv").read_text(encoding="utf-8"))))
     assert sum(1 for r in rows if r["kind"] in {"brace", "tie"}) == 14  # members listed in the demo file
     assert "wrote" in out
+    assert "Caution:" in out
 
 
 def test_per_frame_and_frame_filter(tmp_path: Path) -> None:

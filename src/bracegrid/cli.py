@@ -73,6 +73,7 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
 
     from bracegrid.drawing import parse_formats, render_outputs, write_outputs
     from bracegrid.loading import load_project
+    from bracegrid.report import CAUTION
 
     formats = parse_formats(args.format)
     project = load_project(args.project)
@@ -91,6 +92,7 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
         out.write(f"sheet {sheet.plan.sheet} at 1:{sheet.plan.scale}\n")
     for path in written:
         out.write(f"wrote {path}\n")
+    out.write(f"Caution: {CAUTION}\n")
     return EXIT_OK
 
 
