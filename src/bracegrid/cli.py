@@ -191,7 +191,7 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     except KeyboardInterrupt:
         stderr.write("interrupted\n")
         return 130
-    except Exception as exc:
+    except Exception as exc:  # noqa: BLE001 - last line of defence: no traceback for users
         stderr.write(
             f"internal error ({type(exc).__name__}: {exc}). This is a bracegrid bug; "
             "please report it with the project file.\n"
