@@ -96,6 +96,60 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
     return EXIT_OK
 
 
+def _parse_allow(text: str | None) -> frozenset[Any] | None:
+    from bracegrid.model import MemberKind
+
+    if text is None:
+        return None
+    names = [t.strip().lower() for t in text.split(",") if t.strip()]
+    kinds = {k.value: k for k in MemberKind}
+    bad = [n for n in names if n not in kinds]
+    if bad or not names:
+        msg = f"--allow {text!r}: expected a comma list of {', '.join(kinds)} (e.g. --allow brace,tie)"
+        raise InputError(msg)
+    return frozenset(kinds[n] for n in names)
+
+
+def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
+    from bracegrid.loading import load_project
+    from bracegrid.optimize import SolveOptions, optimize_project
+    from bracegrid.report import optimize_dict, progress_line, render_optimize
+    from bracegrid.saving import save_project
+
+    problems = []
+    if args.time_limit is not None and not args.time_limit > 0:
+        problems.append(f"--time-limit {args.time_limit}: give a positive number of seconds")
+    if args.workers < 1:
+        problems.append(f"--workers {args.workers}: give at least 1")
+    if problems:
+        raise InputError(problems)
+    project = load_project(args.project)
+    frames = _frames(project, args.frame)
+    options = SolveOptions(
+        time_limit=args.time_limit, workers=args.workers, seed=args.seed, allow=_parse_allow(args.allow)
+    )
+    live = sys.stderr if (not args.json and sys.stderr.isatty()) else None
+
+    def show(event: Any) -> None:
+        if live is not None:
+            live.write("\r\033[K" + progress_line(event))
+            live.flush()
+
+    solution = optimize_project(project, options=options, frame_names=[f.name for f in frames], on_progress=show)
+    if live is not None:
+        live.write("\r\033[K")
+        live.flush()
+    if args.write:
+        save_project(solution.project, args.write)
+    if args.json:
+        _emit(out, optimize_dict(solution))
+    else:
+        out.write(render_optimize(project.name, solution))
+        if args.write:
+            out.write(f"Wrote {args.write}\n")
+    return EXIT_OK
+
+
 def _add_common(p: argparse.ArgumentParser) -> None:
     p.add_argument("project", help="project file (TOML)")
     p.add_argument("--frame", metavar="NAME", help="only this frame (default: every frame)")
@@ -146,6 +200,19 @@ def build_parser() -> argparse.ArgumentParser:
     )  # fmt: skip
     draw.add_argument("--per-frame", action="store_true", help="one sheet per frame instead of one for all")
     draw.set_defaults(handler=_cmd_draw)
+
+    opt = sub.add_parser(
+        "optimize",
+        help="minimum-cost stable layout for every frame (CP-SAT with directed cuts, exact shortcuts)",
+        description="Add the cheapest braces and ties that make every frame stable, keeping members in place.",
+    )
+    _add_common(opt)
+    opt.add_argument("--allow", metavar="KINDS", help="member kinds to add, e.g. brace,tie (default: each frame's)")
+    opt.add_argument("--time-limit", type=float, default=60.0, metavar="S", help="seconds per frame (default 60)")
+    opt.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
+    opt.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
+    opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
+    opt.set_defaults(handler=_cmd_optimize)
     return parser
 
 

@@ -157,3 +157,135 @@ def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
     lines.append("")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
+
+
+# --- optimize -------------------------------------------------------------------------------------------------
+
+
+def _solution_parts(solution: Any) -> dict[str, Any]:
+    """Counts and lengths of one frame solution (duck-typed to avoid importing the optimizer)."""
+    from bracegrid.model import MemberKind
+
+    frame = solution.frame
+    members = solution.members
+    new = [m for m in members if not m.existing]
+    length_mm = sum(frame.diagonal_length_mm(m.row, m.col) for m in members)
+    return {
+        "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
+        "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
+        "new_braces": sum(1 for m in new if m.kind is MemberKind.BRACE),
+        "new_ties": sum(1 for m in new if m.kind is MemberKind.TIE),
+        "length_m": round(length_mm / 1000.0, 3),
+    }
+
+
+def optimize_member_dict(member: Member) -> dict[str, Any]:
+    """A member of an optimized layout as JSON (with whether it was kept)."""
+    return {**member_dict(member), "existing": member.existing}
+
+
+def frame_solution_dict(solution: Any) -> dict[str, Any]:
+    """One frame's optimizer answer as a JSON-ready dict.
+
+    Args:
+        solution: A :class:`bracegrid.optimize.FrameSolution`.
+
+    Returns:
+        name, status, cost, added_cost, bound, gap, seconds, method, counts,
+        redundancy achieved, critical members and the members.
+    """
+    parts = _solution_parts(solution)
+    return {
+        "name": solution.frame.name,
+        "status": solution.status.value,
+        "cost": solution.cost,
+        "added_cost": solution.added_cost,
+        "bound": solution.bound,
+        "gap": solution.gap,
+        "seconds": solution.seconds,
+        "method": solution.method,
+        "stable": solution.verdict.stable,
+        "redundancy": solution.redundancy,
+        "braces": parts["braces"],
+        "ties": parts["ties"],
+        "new_braces": parts["new_braces"],
+        "new_ties": parts["new_ties"],
+        "diagonal_length_m": parts["length_m"],
+        "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
+        "members": [optimize_member_dict(m) for m in solution.members],
+    }
+
+
+def optimize_dict(solution: Any) -> dict[str, Any]:
+    """The JSON object of ``bracegrid optimize``.
+
+    Args:
+        solution: A :class:`bracegrid.optimize.ProjectSolution`.
+
+    Returns:
+        ``{"cost", "added_cost", "frames": [...], "caution"}``.
+    """
+    return {
+        "cost": solution.cost,
+        "added_cost": solution.added_cost,
+        "frames": [frame_solution_dict(f) for f in solution.frames],
+        "caution": CAUTION,
+    }
+
+
+def render_optimize(project_name: str, solution: Any) -> str:
+    """Human-readable result of ``bracegrid optimize``.
+
+    Args:
+        project_name: Shown in the title.
+        solution: A :class:`bracegrid.optimize.ProjectSolution`.
+
+    Returns:
+        A table (one row per frame) and notes.
+    """
+    table = Table(title=f"Optimized layout: {project_name}", title_justify="left")
+    heads = ("frame", "status", "braces (new)", "ties (new)", "diagonals m", "cost", "added", "bound", "gap", "time s")
+    for head in heads:
+        table.add_column(head, justify="left" if head in {"frame", "status"} else "right")
+    for s in solution.frames:
+        parts = _solution_parts(s)
+        table.add_row(
+            s.frame.name,
+            s.status.value.upper(),
+            f"{parts['braces']} ({parts['new_braces']})",
+            f"{parts['ties']} ({parts['new_ties']})",
+            f"{parts['length_m']:.2f}",
+            f"{s.cost:.2f}",
+            f"{s.added_cost:.2f}",
+            f"{s.bound:.2f}",
+            f"{100 * s.gap:.2f}%",
+            f"{s.seconds:.2f}",
+        )
+    lines = [render_table(table, width=130)]
+    lines.append(f"Total cost {solution.cost:.2f} (added {solution.added_cost:.2f}).")
+    for s in solution.frames:
+        new = [m for m in s.members if not m.existing]
+        lines.append(f"{s.frame.name}: {s.method}; survives the loss of any {s.redundancy} member(s)")
+        if new:
+            lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")
+        if s.verdict.critical_members:
+            lines.append(
+                f"{s.frame.name}: critical (single loss makes it unstable): "
+                f"{len(s.verdict.critical_members)} member(s)"
+            )
+    lines.append("")
+    lines.append(f"Caution: {CAUTION}")
+    return "\n".join(lines) + "\n"
+
+
+def progress_line(event: Any) -> str:
+    """One live status line from an optimizer progress event.
+
+    Example:
+        >>> from types import SimpleNamespace as E
+        >>> progress_line(E(frame="f", cost=10.0, bound=9.5, gap=0.05, seconds=1.25, stage="CP-SAT"))
+        'f: best 10.00  bound 9.50  gap 5.00%  1.2 s  CP-SAT'
+    """
+    best = "-" if event.cost is None else f"{event.cost:.2f}"
+    gap = "-" if event.gap is None else f"{100 * event.gap:.2f}%"
+    return f"{event.frame}: best {best}  bound {event.bound:.2f}  gap {gap}  {event.seconds:.1f} s  {event.stage}"

@@ -1,0 +1,211 @@
+"""Integer member costs and the per-bay tables the optimizer works on.
+
+Money in the optimizer is an integer number of *cost units*: one unit is
+1/10000 of the project's money unit (a hundredth of a cent). Each member's
+price (per piece + per metre x its bay's diagonal, plus contingency) is
+rounded once to whole units, so every solver works on exact integers and
+every reported total is the exact sum of those integers; reports show money
+with two decimals.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import numpy.typing as npt
+
+from bracegrid.geometry import blocked_bays
+from bracegrid.model import CostCatalogue, Diagonal, Frame, Member, MemberKind
+
+IntArray = npt.NDArray[np.int64]
+BoolArray = npt.NDArray[np.bool_]
+
+#: Cost units per money unit.
+SCALE = 10_000
+
+
+def cost_units(costs: CostCatalogue, kind: MemberKind, length_mm: float) -> int:
+    """Price of one member in whole cost units (1/10000 of a money unit).
+
+    Example:
+        >>> cost_units(CostCatalogue(), MemberKind.BRACE, 5000.0)
+        650000
+    """
+    return round(costs.member_cost(kind, length_mm) * SCALE)
+
+
+def money(units: int | float) -> float:
+    """Cost units to money, rounded to two decimals.
+
+    Example:
+        >>> money(650049)
+        65.0
+    """
+    return round(units / SCALE, 2)
+
+
+@dataclass(frozen=True, slots=True)
+class BayTable:
+    """What each bay of a frame can still take, and what it already has.
+
+    Arrays have shape (R, C) and are indexed [row - 1, col - 1].
+
+    Attributes:
+        rows: R.
+        cols: C.
+        brace_cost: Cost units of a new brace in each bay.
+        tie_cost: Cost units of a new tie in each bay.
+        rising_free: The rising diagonal is not blocked and holds no member.
+        falling_free: Likewise for the falling diagonal.
+        brace_ok: A new brace may go in the bay (allowed, a diagonal free).
+        tie_ok: Tie kinds allowed at all.
+        exist_up: Existing members giving the arc row -> col.
+        exist_down: Existing members giving the arc col -> row.
+        existing_cost: Cost units of the existing members together.
+    """
+
+    rows: int
+    cols: int
+    brace_cost: IntArray
+    tie_cost: IntArray
+    rising_free: BoolArray
+    falling_free: BoolArray
+    brace_ok: BoolArray
+    tie_ok: bool
+    exist_up: IntArray
+    exist_down: IntArray
+    existing_cost: int
+
+    @property
+    def free_slots(self) -> IntArray:
+        """Free diagonals per bay (0, 1 or 2)."""
+        return self.rising_free.astype(np.int64) + self.falling_free.astype(np.int64)
+
+    @property
+    def rising_tie_ok(self) -> BoolArray:
+        """A new rising tie may go in the bay."""
+        return self.rising_free & self.tie_ok
+
+    @property
+    def falling_tie_ok(self) -> BoolArray:
+        """A new falling tie may go in the bay."""
+        return self.falling_free & self.tie_ok
+
+
+def bay_table(frame: Frame, costs: CostCatalogue, members: tuple[Member, ...], allow: frozenset[MemberKind]) -> BayTable:
+    """Tabulate costs, free diagonals and existing arcs of a frame.
+
+    Args:
+        frame: Sizes, blocked bays and openings.
+        costs: Prices.
+        members: Members kept in place.
+        allow: Kinds the optimizer may add.
+
+    Returns:
+        The table.
+
+    Example:
+        >>> from bracegrid.model import Frame
+        >>> t = bay_table(Frame("f", (3000, 4000), (4000,)), CostCatalogue(), (), frozenset(MemberKind))
+        >>> t.brace_cost.tolist()
+        [[650000, 702548]]
+    """
+    r_count, c_count = frame.rows, frame.cols
+    lengths = np.array(
+        [[frame.diagonal_length_mm(i, j) for j in range(1, c_count + 1)] for i in range(1, r_count + 1)],
+        dtype=float,
+    )
+    to_units = np.vectorize(lambda kind, length: cost_units(costs, kind, float(length)), otypes=[np.int64])
+    brace_cost = to_units(MemberKind.BRACE, lengths).astype(np.int64)
+    tie_cost = to_units(MemberKind.TIE, lengths).astype(np.int64)
+    open_bay = np.ones((r_count, c_count), dtype=bool)
+    for r, c in blocked_bays(frame):
+        open_bay[r - 1, c - 1] = False
+    rising_free = open_bay.copy()
+    falling_free = open_bay.copy()
+    exist_up = np.zeros((r_count, c_count), dtype=np.int64)
+    exist_down = np.zeros((r_count, c_count), dtype=np.int64)
+    existing_cost = 0
+    for m in members:
+        i, j = m.row - 1, m.col - 1
+        (rising_free if m.diagonal is Diagonal.RISING else falling_free)[i, j] = False
+        brace = m.kind is MemberKind.BRACE
+        if brace or m.diagonal is Diagonal.RISING:
+            exist_up[i, j] += 1
+        if brace or m.diagonal is Diagonal.FALLING:
+            exist_down[i, j] += 1
+        existing_cost += int((brace_cost if brace else tie_cost)[i, j])
+    brace_ok = (rising_free | falling_free) & (MemberKind.BRACE in allow)
+    return BayTable(
+        rows=r_count,
+        cols=c_count,
+        brace_cost=brace_cost,
+        tie_cost=tie_cost,
+        rising_free=rising_free,
+        falling_free=falling_free,
+        brace_ok=brace_ok,
+        tie_ok=MemberKind.TIE in allow,
+        exist_up=exist_up,
+        exist_down=exist_down,
+        existing_cost=existing_cost,
+    )
+
+
+@dataclass(frozen=True, slots=True)
+class Additions:
+    """New members per bay: braces (0-2), rising ties (0/1), falling ties (0/1).
+
+    Attributes:
+        braces: New braces per bay.
+        rising: New rising ties per bay.
+        falling: New falling ties per bay.
+    """
+
+    braces: IntArray
+    rising: IntArray
+    falling: IntArray
+
+    @classmethod
+    def empty(cls, rows: int, cols: int) -> Additions:
+        """No new members."""
+        z = np.zeros((rows, cols), dtype=np.int64)
+        return cls(z.copy(), z.copy(), z.copy())
+
+    def cost(self, table: BayTable) -> int:
+        """Cost units of the new members."""
+        return int((self.braces * table.brace_cost).sum() + ((self.rising + self.falling) * table.tie_cost).sum())
+
+    def up(self, table: BayTable) -> IntArray:
+        """Member arcs row -> col per bay, existing included."""
+        return table.exist_up + self.braces + self.rising
+
+    def down(self, table: BayTable) -> IntArray:
+        """Member arcs col -> row per bay, existing included."""
+        return table.exist_down + self.braces + self.falling
+
+    def members(self, table: BayTable) -> tuple[Member, ...]:
+        """The new members, each on a free diagonal (ties on their own, braces on what is left).
+
+        Raises:
+            ValueError: If a bay is asked to hold more than its free diagonals.
+        """
+        out: list[Member] = []
+        for i, j in zip(*np.nonzero(self.braces + self.rising + self.falling), strict=True):
+            row, col = int(i) + 1, int(j) + 1
+            free = {Diagonal.RISING: bool(table.rising_free[i, j]), Diagonal.FALLING: bool(table.falling_free[i, j])}
+            for diagonal, count in ((Diagonal.RISING, self.rising[i, j]), (Diagonal.FALLING, self.falling[i, j])):
+                if count:
+                    if not free[diagonal]:
+                        msg = f"bay r{row}c{col}: {diagonal.value} diagonal is not free for a tie"
+                        raise ValueError(msg)
+                    free[diagonal] = False
+                    out.append(Member(row, col, MemberKind.TIE, diagonal, existing=False))
+            for _ in range(int(self.braces[i, j])):
+                spot = next((d for d in (Diagonal.RISING, Diagonal.FALLING) if free[d]), None)
+                if spot is None:
+                    msg = f"bay r{row}c{col}: no free diagonal left for a brace"
+                    raise ValueError(msg)
+                free[spot] = False
+                out.append(Member(row, col, MemberKind.BRACE, spot, existing=False))
+        return tuple(out)

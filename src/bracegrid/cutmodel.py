@@ -1,0 +1,455 @@
+"""CP-SAT cut model of a free frame, solved with lazily separated directed cuts.
+
+Variables per open bay: new braces ``b`` (0/1, or 0..2 when redundancy is
+asked), new rising tie ``tr`` and falling tie ``tf`` (0/1), with
+``b + tr + tf`` at most the free diagonals. Member arcs: ``b + tr`` up
+(row -> column), ``b + tf`` down, plus kept members. A layout survives the
+loss of any k members iff every node set S has at least k + 1 member arcs
+leaving it (Menger; Edmonds). The model starts with the cuts of single
+nodes and, after each solve, adds the cuts the answer violates (strong
+components of the answer for k = 0, minimum cuts by maximum flow for k > 0),
+then re-solves with the best stable layout as a hint. The relaxation's
+bound is a valid lower bound throughout; an answer that violates no cut is
+optimal for the full model.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.sparse import csr_matrix
+from scipy.sparse.csgraph import connected_components, maximum_flow
+
+from bracegrid.costing import Additions, BayTable, BoolArray, IntArray
+
+
+@dataclass(frozen=True, slots=True)
+class CutSolveResult:
+    """What the cut loop found.
+
+    Attributes:
+        additions: Best layout found that satisfies every cut (None if none).
+        bound: Proven lower bound on the added cost (cost units).
+        proven: True when the layout is proven minimal.
+        iterations: Solver calls made.
+        cuts: Cuts in the final model.
+    """
+
+    additions: Additions | None
+    bound: int
+    proven: bool
+    iterations: int
+    cuts: int
+
+
+def arc_lists(table: BayTable, add: Additions) -> tuple[IntArray, IntArray, IntArray]:
+    """(tails, heads, multiplicities) of member arcs of a free frame."""
+    r_count = table.rows
+    up, down = add.up(table), add.down(table)
+    ui, uj = np.nonzero(up)
+    di, dj = np.nonzero(down)
+    src = np.concatenate([ui, r_count + dj]).astype(np.int64)
+    dst = np.concatenate([r_count + uj, di]).astype(np.int64)
+    cap = np.concatenate([up[ui, uj], down[di, dj]]).astype(np.int64)
+    return src, dst, cap
+
+
+def violated_cuts(table: BayTable, add: Additions, k: int) -> list[frozenset[int]]:
+    """Node sets S with fewer than k + 1 member arcs leaving S.
+
+    For k = 0: strong components of the layout, and the sets of components
+    reachable from (reaching) each component. For k > 0: minimum cuts from
+    maximum flows between node 0 and every other node, both ways.
+
+    Returns:
+        Violated sets, each a proper non-empty subset of the nodes (empty list = none violated).
+    """
+    n = table.rows + table.cols
+    src, dst, cap = arc_lists(table, add)
+    everything = frozenset(range(n))
+    found: set[frozenset[int]] = set()
+    if k == 0:
+        g = csr_matrix((np.ones(len(src), dtype=np.int8), (src, dst)), shape=(n, n))
+        count, labels = connected_components(g, directed=True, connection="strong")
+        if count == 1:
+            return []
+        cs, cd = labels[src], labels[dst]
+        between = cs != cd
+        dag = csr_matrix((np.ones(int(between.sum()), dtype=np.int8), (cs[between], cd[between])), shape=(count, count))
+        reach = _closure(dag, count)
+        back = _closure(dag.T.tocsr(), count)
+        members = [frozenset(np.flatnonzero(labels == c).tolist()) for c in range(count)]
+        for c in range(count):
+            down_set = frozenset().union(*(members[d] for d in np.flatnonzero(reach[c])))
+            up_set = frozenset().union(*(members[d] for d in np.flatnonzero(back[c])))
+            if down_set != everything:
+                found.add(down_set)  # nothing leaves what c reaches
+            if up_set != everything:
+                found.add(everything - up_set)  # nothing enters what reaches c
+        return sorted(found, key=lambda s: (len(s), sorted(s)))
+    g = csr_matrix((cap.astype(np.int32), (src, dst)), shape=(n, n))
+    gt = g.T.tocsr()
+    for v in range(1, n):
+        for graph, reverse in ((g, False), (gt, True)):
+            flow = maximum_flow(graph, 0, v)
+            if flow.flow_value >= k + 1:
+                continue
+            residual = graph - flow.flow
+            side = _reachable(residual.tocsr(), 0)
+            # Forward: S = side (holds 0, not v), few arcs leave S.
+            # Reverse graph: few arcs leave `side` in reverse = enter it forwards; S = complement.
+            found.add(frozenset(side) if not reverse else everything - frozenset(side))
+    return sorted(found, key=lambda s: (len(s), sorted(s)))
+
+
+def _closure(dag: csr_matrix, count: int) -> BoolArray:
+    """reach[c, d] = d reachable from c (c included) in a small DAG."""
+    from scipy.sparse.csgraph import breadth_first_order
+
+    reach = np.zeros((count, count), dtype=bool)
+    for c in range(count):
+        reach[c, breadth_first_order(dag, c, directed=True, return_predecessors=False)] = True
+    return reach
+
+
+def _reachable(residual: csr_matrix, start: int) -> list[int]:
+    from scipy.sparse.csgraph import breadth_first_order
+
+    positive = residual.copy()
+    positive.data = (positive.data > 0).astype(np.int8)
+    positive.eliminate_zeros()
+    return breadth_first_order(positive, start, directed=True, return_predecessors=False).tolist()
+
+
+def _interchangeable(sizes: tuple[int, ...], slots: IntArray, kept: IntArray) -> list[list[int]]:
+    """Classes of rows (or columns) with equal size, equal free-diagonal pattern and nothing kept."""
+    classes: dict[tuple[int, tuple[int, ...]], list[int]] = {}
+    for idx in range(len(sizes)):
+        if kept[idx]:
+            continue
+        classes.setdefault((sizes[idx], tuple(slots[idx].tolist())), []).append(idx)
+    return [c for c in classes.values() if len(c) > 1]
+
+
+class CutModel:
+    """The CP-SAT model of one free frame and its growing set of cuts."""
+
+    def __init__(self, table: BayTable, *, k: int, row_sizes: tuple[int, ...], col_sizes: tuple[int, ...]) -> None:
+        from ortools.sat.python import cp_model
+
+        self.table = table
+        self.k = k
+        self.model = cp_model.CpModel()
+        r_count, c_count = table.rows, table.cols
+        self.n = r_count + c_count
+        m = self.model
+        self.b: dict[tuple[int, int], object] = {}
+        self.tr: dict[tuple[int, int], object] = {}
+        self.tf: dict[tuple[int, int], object] = {}
+        self.up: dict[tuple[int, int], list[object]] = {}
+        self.down: dict[tuple[int, int], list[object]] = {}
+        terms = []
+        coefs = []
+        slots = table.free_slots
+        for i in range(r_count):
+            for j in range(c_count):
+                s = int(slots[i, j])
+                if s == 0:
+                    continue
+                here: list[object] = []
+                up: list[object] = []
+                down: list[object] = []
+                if table.brace_ok[i, j]:
+                    top = min(s, 1 if k == 0 else 2)
+                    v = m.new_bool_var(f"b{i}_{j}") if top == 1 else m.new_int_var(0, top, f"b{i}_{j}")
+                    self.b[i, j] = v
+                    here.append(v)
+                    up.append(v)
+                    down.append(v)
+                    terms.append(v)
+                    coefs.append(int(table.brace_cost[i, j]))
+                if table.rising_tie_ok[i, j]:
+                    v = m.new_bool_var(f"tr{i}_{j}")
+                    self.tr[i, j] = v
+                    here.append(v)
+                    up.append(v)
+                    terms.append(v)
+                    coefs.append(int(table.tie_cost[i, j]))
+                if table.falling_tie_ok[i, j]:
+                    v = m.new_bool_var(f"tf{i}_{j}")
+                    self.tf[i, j] = v
+                    here.append(v)
+                    down.append(v)
+                    terms.append(v)
+                    coefs.append(int(table.tie_cost[i, j]))
+                if len(here) > 1:
+                    m.add(sum(here) <= s)  # type: ignore[arg-type]
+                if k == 0 and (i, j) in self.b:
+                    # A tie beside a brace adds no arc; dropping it never costs more.
+                    for t in (self.tr.get((i, j)), self.tf.get((i, j))):
+                        if t is not None:
+                            m.add(self.b[i, j] + t <= 1)  # type: ignore[operator]
+                self.up[i, j] = up
+                self.down[i, j] = down
+        self.objective = cp_model.LinearExpr.weighted_sum(terms, coefs) if terms else 0
+        m.minimize(self.objective)
+        self.cuts: set[frozenset[int]] = set()
+        for v in range(self.n):
+            self.add_cut(frozenset({v}))
+            self.add_cut(frozenset(range(self.n)) - {v})
+        self.partitions: set[tuple[int, ...]] = set()
+        if k == 0:
+            self.add_partition(np.arange(self.n))
+        self._break_symmetry(row_sizes, col_sizes)
+
+    def add_partition(self, labels: IntArray) -> bool:
+        """Partition inequality for the node partition given by labels (k = 0 only).
+
+        Contract each part to a point: the members crossing parts must make
+        the p points strongly connected. Braces alone need a spanning tree
+        (p - 1); with any tie the members must number at least p (p - 1
+        members joining p points form a tree, and a tie on a tree edge
+        leaves that cut one-way). Both cases satisfy
+        ``p * braces + (p - 1) * ties >= p (p - 1)``, the hull of the
+        feasible (braces, ties) counts.
+        """
+        key = tuple(int(x) for x in labels)
+        parts = len(set(key))
+        if self.k != 0 or parts < 2 or key in self.partitions:
+            return False
+        self.partitions.add(key)
+        t = self.table
+        r_count = t.rows
+        row_lab = np.asarray(labels[:r_count])
+        col_lab = np.asarray(labels[r_count:])
+        cross = row_lab[:, None] != col_lab[None, :]
+        p = parts
+        # Kept members crossing count as constants.
+        kept_b = np.minimum(t.exist_up, t.exist_down)
+        kept_t = t.exist_up + t.exist_down - 2 * kept_b
+        need = p * (p - 1) - int(p * kept_b[cross].sum() + (p - 1) * kept_t[cross].sum())
+        if need <= 0:
+            return True
+        terms, coefs = [], []
+        for i, j in zip(*np.nonzero(cross), strict=True):
+            bay = (int(i), int(j))
+            if bay in self.b:
+                terms.append(self.b[bay])
+                coefs.append(p)
+            for store in (self.tr, self.tf):
+                if bay in store:
+                    terms.append(store[bay])
+                    coefs.append(p - 1)
+        from ortools.sat.python import cp_model
+
+        self.model.add(cp_model.LinearExpr.weighted_sum(terms, coefs) >= need)
+        return True
+
+    def _break_symmetry(self, row_sizes: tuple[int, ...], col_sizes: tuple[int, ...]) -> None:
+        """Order interchangeable rows (columns) by their member counts.
+
+        Swapping two rows of equal height, equal blocked pattern and nothing
+        kept maps layouts to layouts of equal cost and stability, and row
+        counts do not change when columns are swapped, so some optimum has
+        both row and column counts non-increasing within each class.
+        """
+        t = self.table
+        kept_rows = (t.exist_up + t.exist_down).sum(axis=1)
+        kept_cols = (t.exist_up + t.exist_down).sum(axis=0)
+        slots = t.free_slots
+        for axis, classes in (
+            (0, _interchangeable(row_sizes, slots, kept_rows)),
+            (1, _interchangeable(col_sizes, slots.T.copy(), kept_cols)),
+        ):
+            span = (t.cols if axis == 0 else t.rows) * 2 + 1
+            for members in classes:
+                sigs = [self._signature(axis, idx, span) for idx in members]
+                for a, b in zip(sigs, sigs[1:], strict=False):
+                    self.model.add(a >= b)  # type: ignore[operator]
+
+    def _signature(self, axis: int, idx: int, span: int) -> object:
+        from ortools.sat.python import cp_model
+
+        bays = [(idx, j) for j in range(self.table.cols)] if axis == 0 else [(i, idx) for i in range(self.table.rows)]
+        terms, coefs = [], []
+        for weight, store in ((span * span, self.b), (span, self.tr), (1, self.tf)):
+            for bay in bays:
+                if bay in store:
+                    terms.append(store[bay])
+                    coefs.append(weight)
+        return cp_model.LinearExpr.weighted_sum(terms, coefs)
+
+    def add_cut(self, s: frozenset[int]) -> bool:
+        """Require k + 1 member arcs leaving node set S; False if already present or trivially met."""
+        if s in self.cuts or not s or len(s) == self.n:
+            return False
+        self.cuts.add(s)
+        t = self.table
+        r_count = t.rows
+        in_row = np.zeros(r_count, dtype=bool)
+        in_col = np.zeros(t.cols, dtype=bool)
+        for v in s:
+            if v < r_count:
+                in_row[v] = True
+            else:
+                in_col[v - r_count] = True
+        up_mask = in_row[:, None] & ~in_col[None, :]
+        down_mask = ~in_row[:, None] & in_col[None, :]
+        need = self.k + 1 - int(t.exist_up[up_mask].sum() + t.exist_down[down_mask].sum())
+        if need <= 0:
+            return True
+        terms: list[object] = []
+        for i, j in zip(*np.nonzero(up_mask), strict=True):
+            terms.extend(self.up.get((int(i), int(j)), ()))
+        for i, j in zip(*np.nonzero(down_mask), strict=True):
+            terms.extend(self.down.get((int(i), int(j)), ()))
+        if not terms:
+            self.model.add_bool_or([])  # no member can cross this cut: infeasible
+            return True
+        self.model.add(sum(terms) >= need)  # type: ignore[arg-type]
+        return True
+
+    def read(self, solver: object) -> Additions:
+        """The solver's current answer as additions."""
+        add = Additions.empty(self.table.rows, self.table.cols)
+        value = solver.value  # type: ignore[attr-defined]
+        for (i, j), v in self.b.items():
+            add.braces[i, j] = value(v)
+        for (i, j), v in self.tr.items():
+            add.rising[i, j] = value(v)
+        for (i, j), v in self.tf.items():
+            add.falling[i, j] = value(v)
+        return add
+
+    def hint(self, add: Additions) -> None:
+        """Use a layout as the solver's starting point."""
+        self.model.clear_hints()
+        for (i, j), v in self.b.items():
+            self.model.add_hint(v, int(add.braces[i, j]))  # type: ignore[arg-type]
+        for (i, j), v in self.tr.items():
+            self.model.add_hint(v, int(add.rising[i, j]))  # type: ignore[arg-type]
+        for (i, j), v in self.tf.items():
+            self.model.add_hint(v, int(add.falling[i, j]))  # type: ignore[arg-type]
+
+
+def configure(params: object, *, workers: int, seed: int, seconds: float) -> None:
+    """CP-SAT parameters that suit the cut model (measured, see docs/optimizer.md).
+
+    The LP relaxation is what makes the cut model fast: with one worker the
+    default search uses no LP, so ``linearization_level = 2`` is set; with
+    several workers the portfolio is led by the LP-heavy ``max_lp`` worker.
+    """
+    p = params
+    p.num_workers = max(1, workers)  # type: ignore[attr-defined]
+    p.random_seed = seed  # type: ignore[attr-defined]
+    p.max_time_in_seconds = max(0.01, seconds)  # type: ignore[attr-defined]
+    p.linearization_level = 2  # type: ignore[attr-defined]
+    if workers > 1:
+        p.subsolvers.extend(["max_lp", "quick_restart"])  # type: ignore[attr-defined]
+
+
+@dataclass(frozen=True, slots=True)
+class LoopReport:
+    """One step of the cut loop, for progress display.
+
+    Attributes:
+        iteration: Solver calls so far.
+        best: Best stable added cost so far (cost units), None if none.
+        bound: Lower bound on the added cost (cost units).
+        cuts: Cuts in the model.
+    """
+
+    iteration: int
+    best: int | None
+    bound: int
+    cuts: int
+
+
+def solve_with_cuts(
+    table: BayTable,
+    *,
+    k: int,
+    row_sizes: tuple[int, ...],
+    col_sizes: tuple[int, ...],
+    incumbent: Additions | None,
+    improve: Callable[[Additions], Additions | None],
+    deadline: float,
+    workers: int,
+    seed: int,
+    on_step: Callable[[LoopReport], None] | None = None,
+    initial_bound: int = 0,
+) -> CutSolveResult:
+    """Run the lazy-cut loop until proven optimal or the deadline.
+
+    Args:
+        table: The frame's table.
+        k: Redundancy asked.
+        row_sizes: Row heights (for symmetry classes).
+        col_sizes: Column widths.
+        incumbent: A layout satisfying every cut, used as the first hint.
+        improve: Turns a relaxed answer into a layout satisfying every cut (or None).
+        deadline: ``time.monotonic()`` value to stop at.
+        workers: CP-SAT workers.
+        seed: CP-SAT random seed.
+        on_step: Called after every solver call.
+        initial_bound: A lower bound known beforehand (e.g. the closed form of the complete frame).
+
+    Returns:
+        The best layout, a proven lower bound and whether it is optimal.
+    """
+    from ortools.sat.python import cp_model
+
+    cm = CutModel(table, k=k, row_sizes=row_sizes, col_sizes=col_sizes)
+    best = incumbent
+    best_cost = incumbent.cost(table) if incumbent is not None else None
+    bound = initial_bound
+    iterations = 0
+    proven = best_cost is not None and best_cost <= bound
+    if proven:
+        bound = best_cost or 0
+    while not proven:
+        remaining = deadline - time.monotonic()
+        if remaining <= 0.01:
+            break
+        if best is not None:
+            cm.hint(best)
+        solver = cp_model.CpSolver()
+        p = solver.parameters
+        configure(p, workers=workers, seed=seed, seconds=remaining)
+        status = solver.solve(cm.model)
+        iterations += 1
+        if status == cp_model.INFEASIBLE:
+            if best is None:
+                break
+            proven = True  # the hint satisfied every cut, so this cannot happen; be safe
+            bound = best_cost or 0
+            break
+        if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
+            break
+        bound = max(bound, int(np.ceil(solver.best_objective_bound - 1e-6)))
+        if status == cp_model.OPTIMAL:
+            bound = max(bound, int(round(solver.objective_value)))
+        relaxed = cm.read(solver)
+        cuts = violated_cuts(table, relaxed, k)
+        candidate = relaxed if not cuts else improve(relaxed)
+        if candidate is not None:
+            c = candidate.cost(table)
+            if best_cost is None or c < best_cost:
+                best, best_cost = candidate, c
+        if best_cost is not None and bound >= best_cost:
+            proven = True
+            bound = best_cost
+        if on_step is not None:
+            on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
+        if proven or status != cp_model.OPTIMAL:
+            break
+        for s in cuts:
+            cm.add_cut(s)
+        if k == 0 and cuts:
+            from bracegrid.warmstart import strong_labels
+
+            cm.add_partition(strong_labels(table, relaxed)[1])
+    return CutSolveResult(best, bound, proven, iterations, len(cm.cuts))

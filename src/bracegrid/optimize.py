@@ -1,0 +1,448 @@
+"""Minimum-cost stable layouts: shortcuts where exact ones exist, CP-SAT with directed cuts otherwise.
+
+Dispatch for one frame (docs/optimizer.md explains each route):
+
+1. pinned base: rows decouple, each row solved exactly (no solver);
+2. free frame, rigid braces only, kept members two-way: minimum spanning tree;
+3. free complete frame with uniform bays and nothing kept: closed form;
+4. otherwise: CP-SAT on the cut model with lazily separated directed cuts,
+   warm-started from a greedy repair layout, with symmetry breaking.
+
+Every layout returned is re-verified with :func:`bracegrid.rigidity.check_layout`
+(and, when redundancy is asked, :func:`bracegrid.rigidity.redundancy_of`).
+
+References:
+    E. D. Bolker and H. Crapo, "Bracing rectangular frameworks. I",
+    SIAM J. Appl. Math. 36(3), 473-490 (1979), doi:10.1137/0136036.
+    J. A. Baglivo and J. E. Graver, *Incidence and Symmetry in Design and
+    Architecture*, Cambridge University Press (1983), ch. 10.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from enum import Enum
+
+import numpy as np
+
+from bracegrid.costing import Additions, BayTable, bay_table, money
+from bracegrid.errors import InfeasibleError, SolverLimitError
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, Verdict
+from bracegrid.rigidity import check_layout
+
+
+class SolveStatus(Enum):
+    """How good a returned layout is known to be."""
+
+    OPTIMAL = "optimal"
+    """Proven minimum cost."""
+    FEASIBLE = "feasible"
+    """Stable, but the time limit came before a proof; see the bound and gap."""
+
+
+@dataclass(frozen=True, slots=True)
+class SolveOptions:
+    """Options of the optimizer.
+
+    Attributes:
+        time_limit: Wall-clock seconds per frame.
+        workers: CP-SAT worker threads.
+        seed: CP-SAT random seed. With one worker, or when a run ends before
+            its time limit, the same seed gives the same layout.
+        allow: Member kinds that may be added (None = each frame's own ``allow``).
+        redundancy: Members whose loss the layout must survive (None = each frame's own).
+    """
+
+    time_limit: float = 60.0
+    workers: int = 2
+    seed: int = 0
+    allow: frozenset[MemberKind] | None = None
+    redundancy: int | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class ProgressEvent:
+    """A progress report while a frame is being solved.
+
+    Attributes:
+        frame: Frame name.
+        cost: Best stable layout cost so far (whole layout, money), None if none yet.
+        bound: Proven lower bound on the whole layout cost (money).
+        gap: Relative gap on the added cost, None if no layout yet.
+        seconds: Time spent on this frame.
+        stage: What is running.
+    """
+
+    frame: str
+    cost: float | None
+    bound: float
+    gap: float | None
+    seconds: float
+    stage: str
+
+
+@dataclass(frozen=True, slots=True)
+class FrameSolution:
+    """The optimizer's answer for one frame.
+
+    Attributes:
+        frame: The frame with ``members`` replaced by the full layout.
+        members: Kept members (as they were) followed by new ones (``existing=False``).
+        status: Optimal or feasible.
+        cost: Cost of the whole layout, kept members included (money, two decimals).
+        added_cost: Cost of the new members only.
+        bound: Proven lower bound on ``cost``.
+        gap: ``(added_cost - (bound - kept cost)) / added_cost`` (0 when proven or nothing added).
+        seconds: Wall-clock time spent.
+        verdict: Stability check of the layout (always stable).
+        method: How it was solved.
+        redundancy: Member losses the layout is proven to survive.
+    """
+
+    frame: Frame
+    members: tuple[Member, ...]
+    status: SolveStatus
+    cost: float
+    added_cost: float
+    bound: float
+    gap: float
+    seconds: float
+    verdict: Verdict
+    method: str
+    redundancy: int = 0
+
+
+@dataclass(frozen=True, slots=True)
+class ProjectSolution:
+    """The optimizer's answer for a project.
+
+    Attributes:
+        project: The project with solved frames' members replaced by their layouts.
+        frames: One solution per solved frame, in project order.
+        cost: Sum of the frames' layout costs.
+        added_cost: Sum of the frames' added costs.
+    """
+
+    project: Project
+    frames: tuple[FrameSolution, ...]
+    cost: float
+    added_cost: float
+
+
+Progress = Callable[[ProgressEvent], None]
+
+
+def _max_additions(table: BayTable, k: int) -> Additions:
+    """Every member that could be added (dominant per bay): the most arcs both ways."""
+    slots = table.free_slots
+    top = np.minimum(slots, 2 if k > 0 else 1)
+    braces = np.where(table.brace_ok, top, 0).astype(np.int64)
+    rising = np.where(~table.brace_ok & table.rising_tie_ok, 1, 0).astype(np.int64)
+    falling = np.where(~table.brace_ok & table.falling_tie_ok, 1, 0).astype(np.int64)
+    return Additions(braces, rising, falling)
+
+
+def _infeasible_reasons(frame: Frame, table: BayTable, allow: frozenset[MemberKind], k: int) -> list[str]:
+    """Why no layout exists (empty when one does)."""
+    from bracegrid.rigidity import redundancy_of
+    from bracegrid.report import anchor_words, describe_part
+
+    full = _max_additions(table, k)
+    kept = tuple(frame.members)
+    members = kept + full.members(table)
+    verdict = check_layout(frame, members)
+    if verdict.stable and (k == 0 or redundancy_of(frame, members) >= k):
+        return []
+    name = frame.name
+    reasons: list[str] = []
+    open_row = (table.free_slots > 0) | (table.exist_up + table.exist_down > 0)
+    for i in range(table.rows):
+        if not open_row[i].any():
+            reasons.append(
+                f"frame {name!r}: row {i + 1} has every bay blocked, so nothing can stop it racking; "
+                "unblock a bay in that row"
+            )
+    if frame.supports is Supports.FREE:
+        for j in range(table.cols):
+            if not open_row[:, j].any():
+                reasons.append(
+                    f"frame {name!r}: column {j + 1} has every bay blocked, so nothing ties it to the rest; "
+                    "unblock a bay in that column or pin the base"
+                )
+        if allow == frozenset({MemberKind.TIE}) and min(table.rows, table.cols) == 1:
+            x_bays = (table.rising_free & table.falling_free).any()
+            if not x_bays and not verdict.stable:
+                reasons.append(
+                    f"frame {name!r}: ties only with supports free on a 1-row (or 1-column) frame needs both "
+                    "diagonals of some bay (an X of ties); free a bay's two diagonals or allow braces"
+                )
+    if not verdict.stable:
+        if not reasons:
+            anchor = anchor_words(verdict)
+            allowed = " and ".join(sorted(kd.value + "s" for kd in allow)) or "no member kinds"
+            for part in verdict.loose_parts:
+                reasons.append(
+                    f"frame {name!r}: even with {allowed} in every free diagonal, {describe_part(part, anchor)}; "
+                    "unblock bays or allow more member kinds"
+                )
+    elif k > 0:
+        got = redundancy_of(frame, members)
+        reasons.append(
+            f"frame {name!r}: redundancy {k} asked, but even with every allowed member in every free diagonal "
+            f"the frame survives the loss of only {got} member(s); lower the redundancy, unblock bays or "
+            "allow more member kinds"
+        )
+    return reasons
+
+
+def optimize_frame(
+    frame: Frame,
+    costs: CostCatalogue,
+    *,
+    options: SolveOptions = SolveOptions(),
+    on_progress: Progress | None = None,
+) -> FrameSolution:
+    """Find a minimum-cost stable layout for one frame, keeping its members.
+
+    Args:
+        frame: The frame; its members are kept in place at no added cost.
+        costs: Prices.
+        options: Time limit, workers, seed, allowed kinds, redundancy.
+        on_progress: Called with progress events while solving.
+
+    Returns:
+        The layout, re-verified stable, with cost, bound, gap and how it was solved.
+
+    Raises:
+        InfeasibleError: No layout can make the frame stable (with reasons).
+        SolverLimitError: No layout was found within the limit (should not happen).
+
+    Example:
+        >>> from bracegrid.model import Frame
+        >>> sol = optimize_frame(Frame("f", (3000,) * 3, (2000,) * 2, allow=frozenset({MemberKind.BRACE})),
+        ...                      CostCatalogue())
+        >>> sol.status.value, len(sol.members), sol.method
+        ('optimal', 4, 'minimum spanning tree of braces')
+    """
+    start = time.monotonic()
+    deadline = start + max(0.0, options.time_limit)
+    allow = frame.allow if options.allow is None else options.allow
+    k = frame.redundancy if options.redundancy is None else options.redundancy
+    kept = tuple(frame.members)
+    table = bay_table(frame, costs, kept, allow)
+    reasons = _infeasible_reasons(frame, table, allow, k)
+    if reasons:
+        raise InfeasibleError(reasons)
+
+    def report(stage: str, best: int | None, bound: int) -> None:
+        if on_progress is None:
+            return
+        gap = None if best is None else (0.0 if best == 0 else max(0.0, (best - bound) / best))
+        on_progress(
+            ProgressEvent(
+                frame=frame.name,
+                cost=None if best is None else money(table.existing_cost + best),
+                bound=money(table.existing_cost + bound),
+                gap=gap,
+                seconds=time.monotonic() - start,
+                stage=stage,
+            )
+        )
+
+    add, bound, proven, method = _solve(frame, table, allow, k, options, deadline, report)
+    return _finish(frame, table, add, bound, proven, method, k, start)
+
+
+def _solve(
+    frame: Frame,
+    table: BayTable,
+    allow: frozenset[MemberKind],
+    k: int,
+    options: SolveOptions,
+    deadline: float,
+    report: Callable[[str, int | None, int], None],
+) -> tuple[Additions, int, bool, str]:
+    from bracegrid import shortcuts
+    from bracegrid.rigidity import redundancy_of
+
+    if redundancy_of(frame, frame.members) >= k:
+        report("kept members suffice", 0, 0)
+        return Additions.empty(table.rows, table.cols), 0, True, "kept members already suffice"
+    if frame.supports is Supports.BASE:
+        got = shortcuts.pinned_base_rows(table, k=k)
+        if got is None:  # pragma: no cover - ruled out by the feasibility check
+            msg = f"frame {frame.name!r}: no layout found"
+            raise SolverLimitError(msg)
+        cost = got.additions.cost(table)
+        report(got.method, cost, cost)
+        return got.additions, cost, True, got.method
+    if k == 0 and MemberKind.TIE not in allow and shortcuts.existing_is_symmetric(table):
+        got = shortcuts.spanning_tree_braces(table)
+        if got is not None:
+            cost = got.additions.cost(table)
+            report(got.method, cost, cost)
+            return got.additions, cost, True, got.method
+    if k == 0:
+        got = shortcuts.closed_form(table)
+        if got is not None:
+            cost = got.additions.cost(table)
+            report(got.method, cost, cost)
+            return got.additions, cost, True, got.method
+    return _solve_cp(frame, table, allow, k, options, deadline, report)
+
+
+def _solve_cp(
+    frame: Frame,
+    table: BayTable,
+    allow: frozenset[MemberKind],
+    k: int,
+    options: SolveOptions,
+    deadline: float,
+    report: Callable[[str, int | None, int], None],
+) -> tuple[Additions, int, bool, str]:
+    from bracegrid import cutmodel, shortcuts, warmstart
+
+    improve: Callable[[Additions], Additions | None]
+    if k == 0:
+        improve = lambda a: warmstart.constructive(table, a)  # noqa: E731
+        tries = 12 if table.rows * table.cols <= 2500 else 2
+        starts = [warmstart.constructive(table), warmstart.pattern_starts(table, tries=tries, seed=options.seed)]
+        if MemberKind.BRACE in allow and shortcuts.existing_is_symmetric(table):
+            tree = shortcuts.spanning_tree_braces(table)
+            if tree is not None:
+                starts.append(warmstart.prune(table, tree.additions))
+    else:
+        improve = lambda a: warmstart.constructive_redundant(table, a, k)  # noqa: E731
+        starts = [warmstart.constructive_redundant(table, None, k)]
+    found = [s for s in starts if s is not None]
+    incumbent = min(found, key=lambda a: a.cost(table)) if found else None
+    report("warm start", None if incumbent is None else incumbent.cost(table), 0)
+
+    def step(s: cutmodel.LoopReport) -> None:
+        report(f"CP-SAT directed cuts (round {s.iteration}, {s.cuts} cuts)", s.best, s.bound)
+
+    floor = 0
+    if k == 0 and not frame.members:
+        # Blocking bays or dearer bays never make a layout cheaper: the closed form of the
+        # complete frame at the cheapest bay prices bounds every free frame with nothing kept.
+        open_bays = table.free_slots > 0
+        a = int(table.brace_cost[open_bays].min()) if table.brace_ok.any() else None
+        b = int(table.tie_cost[open_bays].min()) if table.tie_ok and open_bays.any() else None
+        if a is not None or b is not None:
+            floor = shortcuts.closed_form_cost(table.rows, table.cols, a, b)
+    result = cutmodel.solve_with_cuts(
+        table,
+        k=k,
+        row_sizes=frame.heights,
+        col_sizes=frame.widths,
+        incumbent=incumbent,
+        improve=improve,
+        deadline=deadline,
+        workers=options.workers,
+        seed=options.seed,
+        on_step=step,
+        initial_bound=floor,
+    )
+    if result.additions is None:
+        msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise --time-limit"
+        raise SolverLimitError(msg)
+    if result.iterations == 0:
+        method = "pattern layout, proven by the complete-frame closed-form bound"
+    else:
+        method = f"CP-SAT directed cuts ({result.iterations} rounds, {result.cuts} cuts)"
+    return result.additions, result.bound, result.proven, method
+
+
+def _finish(
+    frame: Frame,
+    table: BayTable,
+    add: Additions,
+    bound: int,
+    proven: bool,
+    method: str,
+    k: int,
+    start: float,
+) -> FrameSolution:
+    from bracegrid.rigidity import redundancy_of
+
+    kept = tuple(frame.members)
+    new = add.members(table)
+    members = kept + tuple(sorted(new, key=lambda m: m.sort_key))
+    verdict = check_layout(frame, members)
+    achieved = redundancy_of(frame, members) if verdict.stable else -1
+    if not verdict.stable or achieved < k:
+        msg = (
+            f"internal error: the optimizer produced a layout for frame {frame.name!r} that fails the "
+            f"re-check (stable={verdict.stable}, redundancy {achieved} < {k}); this is a bracegrid bug"
+        )
+        raise RuntimeError(msg)
+    added = add.cost(table)
+    bound = min(bound, added)
+    if proven:
+        bound = added
+    gap = 0.0 if added == 0 else (added - bound) / added
+    return FrameSolution(
+        frame=dataclasses.replace(frame, members=members),
+        members=members,
+        status=SolveStatus.OPTIMAL if proven else SolveStatus.FEASIBLE,
+        cost=money(table.existing_cost + added),
+        added_cost=money(added),
+        bound=money(table.existing_cost + bound),
+        gap=round(gap, 6),
+        seconds=round(time.monotonic() - start, 3),
+        verdict=verdict,
+        method=method,
+        redundancy=achieved,
+    )
+
+
+def optimize_project(
+    project: Project,
+    *,
+    options: SolveOptions = SolveOptions(),
+    frame_names: Sequence[str] | None = None,
+    on_progress: Progress | None = None,
+) -> ProjectSolution:
+    """Optimize every frame of a project (or the named ones).
+
+    Args:
+        project: The project.
+        options: Solver options, applied to each frame.
+        frame_names: Only these frames (default: all).
+        on_progress: Called with progress events.
+
+    Returns:
+        The solutions and the project with the new layouts in place.
+
+    Raises:
+        KeyError: If a frame name is unknown.
+        InfeasibleError: If some frame has no stable layout (all such frames' reasons together).
+
+    Example:
+        >>> from bracegrid.model import Frame, Supports
+        >>> p = Project("p", (Frame("f", (2500,) * 4, (2000,) * 3, supports=Supports.BASE),))
+        >>> sol = optimize_project(p)
+        >>> len(sol.frames[0].members), sol.frames[0].status.value
+        (6, 'optimal')
+    """
+    chosen = [project.frame(n) for n in frame_names] if frame_names is not None else list(project.frames)
+    solutions: list[FrameSolution] = []
+    reasons: list[str] = []
+    for frame in chosen:
+        try:
+            solutions.append(optimize_frame(frame, project.costs, options=options, on_progress=on_progress))
+        except InfeasibleError as exc:
+            reasons.extend(exc.reasons)
+    if reasons:
+        raise InfeasibleError(reasons)
+    by_name = {s.frame.name: s.frame for s in solutions}
+    frames = tuple(by_name.get(f.name, f) for f in project.frames)
+    return ProjectSolution(
+        project=dataclasses.replace(project, frames=frames),
+        frames=tuple(solutions),
+        cost=round(sum(s.cost for s in solutions), 2),
+        added_cost=round(sum(s.added_cost for s in solutions), 2),
+    )

@@ -1,0 +1,274 @@
+"""Exact solutions without a solver: spanning trees, pinned-base rows, closed forms.
+
+Three cases need no search (docs/optimizer.md gives the arguments):
+
+* rigid braces only on a free frame whose kept members are all braces (or
+  give arcs both ways): braces form a graphic matroid on the bipartite
+  row/column graph, so Kruskal's minimum spanning tree is optimal
+  (Bolker & Crapo 1979);
+* a pinned base: the ground and every column form one strong part, so each
+  row only needs ``k + 1`` member arcs out of it and ``k + 1`` into it, which
+  a small dynamic programme over the row's bays settles exactly;
+* a complete free frame with uniform bays and nothing in place: the closed
+  form ``min((r+c-1)a, 2rb + (c-r)a, 2cb)`` with its construction.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from bracegrid.costing import Additions, BayTable
+
+
+@dataclass(frozen=True, slots=True)
+class Shortcut:
+    """A layout found without search, with how it was found.
+
+    Attributes:
+        additions: The new members.
+        method: Short description for reports.
+        proven: True when the layout is proven minimal.
+    """
+
+    additions: Additions
+    method: str
+    proven: bool = True
+
+
+class _Union:
+    def __init__(self, n: int) -> None:
+        self.parent = list(range(n))
+
+    def find(self, a: int) -> int:
+        while self.parent[a] != a:
+            self.parent[a] = self.parent[self.parent[a]]
+            a = self.parent[a]
+        return a
+
+    def join(self, a: int, b: int) -> bool:
+        ra, rb = self.find(a), self.find(b)
+        if ra == rb:
+            return False
+        self.parent[ra] = rb
+        return True
+
+
+def existing_is_symmetric(table: BayTable) -> bool:
+    """Whether every kept arc has its reverse (so strong parts = connected parts)."""
+    from scipy.sparse import csr_matrix
+    from scipy.sparse.csgraph import connected_components
+
+    r_count, c_count = table.rows, table.cols
+    n = r_count + c_count
+    ui, uj = np.nonzero(table.exist_up)
+    di, dj = np.nonzero(table.exist_down)
+    src = np.concatenate([ui, r_count + dj])
+    dst = np.concatenate([r_count + uj, di])
+    g = csr_matrix((np.ones(len(src), dtype=np.int8), (src, dst)), shape=(n, n))
+    strong, _ = connected_components(g, directed=True, connection="strong")
+    weak, _ = connected_components(g, directed=True, connection="weak")
+    return bool(strong == weak)
+
+
+def spanning_tree_braces(table: BayTable) -> Shortcut | None:
+    """Minimum-cost braces joining every row and column (Kruskal), kept members contracted.
+
+    Valid on a free frame when kept members give arcs both ways (see
+    :func:`existing_is_symmetric`). O(RC log RC).
+
+    Returns:
+        The braces, or None when the allowed bays cannot connect every node.
+
+    Example:
+        >>> from bracegrid.costing import bay_table
+        >>> from bracegrid.model import CostCatalogue, Frame, MemberKind
+        >>> t = bay_table(Frame("f", (3000,) * 3, (2000,) * 2), CostCatalogue(), (), frozenset({MemberKind.BRACE}))
+        >>> int(spanning_tree_braces(t).additions.braces.sum())  # R + C - 1
+        4
+    """
+    r_count, c_count = table.rows, table.cols
+    uf = _Union(r_count + c_count)
+    for i, j in zip(*np.nonzero((table.exist_up > 0) | (table.exist_down > 0)), strict=True):
+        uf.join(int(i), r_count + int(j))
+    add = Additions.empty(r_count, c_count)
+    bi, bj = np.nonzero(table.brace_ok)
+    order = np.lexsort((bj, bi, table.brace_cost[bi, bj]))
+    for k in order:
+        i, j = int(bi[k]), int(bj[k])
+        if uf.join(i, r_count + j):
+            add.braces[i, j] = 1
+    roots = {uf.find(v) for v in range(r_count + c_count)}
+    if len(roots) > 1:
+        return None
+    return Shortcut(add, "minimum spanning tree of braces")
+
+
+def _row_options(table: BayTable, i: int, j: int, k: int) -> list[tuple[int, int, int, int]]:
+    """(braces, rising, falling, cost) choices for one bay (dominated X+brace mixes dropped for k = 0)."""
+    slots = int(table.free_slots[i, j])
+    max_b = min(slots, 2 if k > 0 else 1) if table.brace_ok[i, j] else 0
+    out = []
+    for b in range(max_b + 1):
+        for tr in range(int(table.rising_tie_ok[i, j]) + 1):
+            for tf in range(int(table.falling_tie_ok[i, j]) + 1):
+                if b + tr + tf > slots or (k == 0 and b and (tr or tf)):
+                    continue
+                cost = b * int(table.brace_cost[i, j]) + (tr + tf) * int(table.tie_cost[i, j])
+                out.append((b, tr, tf, cost))
+    return out
+
+
+def pinned_base_rows(table: BayTable, *, k: int = 0) -> Shortcut | None:
+    """Cheapest members so that every row has k+1 member arcs to and from the columns.
+
+    Exact for a pinned base: ground and columns form one strong part joined
+    by never-lost arcs, so the only cuts are sets of rows and the tightest
+    are single rows. Each row is a dynamic programme over its bays with state
+    (arcs out, arcs in) capped at k + 1: O(R C (k+2)^2).
+
+    Returns:
+        The members, or None when some row cannot reach k+1 arcs each way.
+
+    Example:
+        >>> from bracegrid.costing import bay_table
+        >>> from bracegrid.model import CostCatalogue, Frame, MemberKind
+        >>> t = bay_table(Frame("f", (3000,) * 3, (2000,) * 4), CostCatalogue(), (), frozenset(MemberKind))
+        >>> s = pinned_base_rows(t)
+        >>> int(s.additions.braces.sum()), int(s.additions.rising.sum() + s.additions.falling.sum())
+        (0, 8)
+    """
+    need = k + 1
+    add = Additions.empty(table.rows, table.cols)
+    for i in range(table.rows):
+        start = (min(need, int(table.exist_up[i].sum())), min(need, int(table.exist_down[i].sum())))
+        # best[state] = (cost, choices)
+        best: dict[tuple[int, int], tuple[int, list[tuple[int, int, int, int]]]] = {start: (0, [])}
+        for j in range(table.cols):
+            options = _row_options(table, i, j, k)
+            nxt: dict[tuple[int, int], tuple[int, list[tuple[int, int, int, int]]]] = {}
+            for (u, d), (cost, picks) in best.items():
+                for b, tr, tf, c in options:
+                    state = (min(need, u + b + tr), min(need, d + b + tf))
+                    total = cost + c
+                    if state not in nxt or total < nxt[state][0]:
+                        pick = picks + [(j, b, tr, tf)] if (b or tr or tf) else picks
+                        nxt[state] = (total, pick)
+            best = nxt
+        if (need, need) not in best:
+            return None
+        for j, b, tr, tf in best[(need, need)][1]:
+            add.braces[i, j] += b
+            add.rising[i, j] += tr
+            add.falling[i, j] += tf
+    return Shortcut(add, "pinned-base rows (exact per row)")
+
+
+def closed_form_applies(table: BayTable) -> bool:
+    """Complete frame (nothing blocked or in place) with uniform member costs."""
+    return bool(
+        table.free_slots.min() == 2
+        and table.exist_up.sum() + table.exist_down.sum() == 0
+        and (table.brace_cost == table.brace_cost.flat[0]).all()
+        and (table.tie_cost == table.tie_cost.flat[0]).all()
+    )
+
+
+def closed_form_cost(rows: int, cols: int, brace: int | None, tie: int | None) -> int:
+    """Minimum cost of a complete free frame with uniform costs (None = kind not allowed).
+
+    ``r = min(R, C)``, ``c = max(R, C)``: braces only ``(r+c-1)a``, ties only
+    ``2cb``, both ``min((r+c-1)a, 2rb + (c-r)a, 2cb)``.
+
+    Example:
+        >>> closed_form_cost(4, 6, 10, 7)  # min(90, 56 + 20, 84)
+        76
+    """
+    r, c = min(rows, cols), max(rows, cols)
+    options = []
+    if brace is not None:
+        options.append((r + c - 1) * brace)
+    if tie is not None:
+        options.append(2 * c * tie)
+    if brace is not None and tie is not None:
+        options.append(2 * r * tie + (c - r) * brace)
+    return min(options)
+
+
+def closed_form(table: BayTable) -> Shortcut | None:
+    """The closed-form optimum and a layout reaching it, on a complete uniform free frame.
+
+    Returns:
+        The layout, or None when the frame is not complete and uniform.
+
+    Example:
+        >>> from bracegrid.costing import bay_table
+        >>> from bracegrid.model import CostCatalogue, Frame, MemberKind
+        >>> t = bay_table(Frame("f", (3000,) * 6, (3000,) * 4), CostCatalogue(), (), frozenset(MemberKind))
+        >>> s = closed_form(t)
+        >>> s.additions.cost(t) == closed_form_cost(4, 6, int(t.brace_cost[0, 0]), int(t.tie_cost[0, 0]))
+        True
+    """
+    if not closed_form_applies(table):
+        return None
+    r_count, c_count = table.rows, table.cols
+    a = int(table.brace_cost[0, 0]) if table.brace_ok.all() else None
+    b = int(table.tie_cost[0, 0]) if table.tie_ok else None
+    if a is None and b is None:
+        return None
+    best = closed_form_cost(r_count, c_count, a, b)
+    if a is not None and best == (r_count + c_count - 1) * a:
+        kind = "tree"
+    elif b is not None and best == 2 * max(r_count, c_count) * b:
+        kind = "cycle"
+    else:
+        kind = "mixed"
+    add = pattern(r_count, c_count, kind)
+    return Shortcut(add, f"closed form: {PATTERN_NAMES[kind]}")
+
+
+PATTERN_NAMES = {"tree": "spanning tree of braces", "cycle": "one cycle of ties", "mixed": "tie cycle plus braces"}
+
+
+def pattern(r_count: int, c_count: int, kind: str) -> Additions:
+    """The closed-form layouts of a complete R x C frame.
+
+    Args:
+        r_count: Rows.
+        c_count: Columns.
+        kind: ``"tree"`` (R+C-1 braces), ``"cycle"`` (2 max(R,C) ties) or
+            ``"mixed"`` (2 min(R,C) ties in a cycle, braces for the rest).
+
+    Returns:
+        The members as additions.
+
+    Example:
+        >>> a = pattern(2, 3, "mixed")
+        >>> int(a.braces.sum()), int(a.rising.sum() + a.falling.sum())
+        (1, 4)
+    """
+    r, c = min(r_count, c_count), max(r_count, c_count)
+    # Work as if rows are the short side; transpose at the end when R > C.
+    braces = np.zeros((r, c), dtype=np.int64)
+    rising = np.zeros((r, c), dtype=np.int64)
+    falling = np.zeros((r, c), dtype=np.int64)
+    if kind == "tree":
+        braces[0, :] = 1
+        braces[1:, 0] = 1
+    elif kind == "cycle":
+        # One directed cycle col j -> row (j mod r) -> col j+1, through every column.
+        for j in range(c):
+            falling[j % r, j] = 1
+            rising[j % r, (j + 1) % c] = 1
+    else:
+        # Tie cycle over the r short-side nodes and r long-side nodes, braces for the rest.
+        for j in range(r):
+            falling[j, j] = 1
+            rising[j, (j + 1) % r] = 1
+        braces[0, r:] = 1
+    if r_count > c_count:
+        # Transposing swaps rows and columns, which reverses every tie's arc
+        # (row->col becomes col->row): a rising tie becomes a falling one.
+        braces, rising, falling = braces.T.copy(), falling.T.copy(), rising.T.copy()
+    return Additions(braces, rising, falling)

@@ -1,0 +1,270 @@
+"""Constructive layouts: greedy repair to strong connectivity, then pruning.
+
+Used as the first incumbent, to turn every relaxed solver answer into a
+stable layout (an upper bound), and as the fallback when the time limit
+leaves nothing better. Nodes: row i is ``i - 1``, column j is ``R + j - 1``.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy.sparse import csr_matrix
+from scipy.sparse.csgraph import connected_components
+
+from bracegrid.costing import Additions, BayTable, IntArray
+
+_BIG = np.iinfo(np.int64).max // 4
+
+
+def strong_labels(table: BayTable, add: Additions) -> tuple[int, IntArray]:
+    """Strong components of kept + added members (free frame)."""
+    r_count, c_count = table.rows, table.cols
+    n = r_count + c_count
+    ui, uj = np.nonzero(add.up(table))
+    di, dj = np.nonzero(add.down(table))
+    src = np.concatenate([ui, r_count + dj])
+    dst = np.concatenate([r_count + uj, di])
+    g = csr_matrix((np.ones(len(src), dtype=np.int8), (src, dst)), shape=(n, n))
+    count, labels = connected_components(g, directed=True, connection="strong")
+    return int(count), labels.astype(np.int64)
+
+
+def _arc_prices(table: BayTable, add: Additions) -> tuple[IntArray, IntArray, IntArray, IntArray]:
+    """Cheapest new member giving each up / down arc per bay, and whether it is a brace (1) or tie (0)."""
+    used = add.braces + add.rising + add.falling
+    slots = table.free_slots - used
+    brace_ok = table.brace_ok & (slots > 0)
+    up_tie = table.rising_tie_ok & (add.rising == 0) & (slots > 0)
+    down_tie = table.falling_tie_ok & (add.falling == 0) & (slots > 0)
+    brace = np.where(brace_ok, table.brace_cost, _BIG)
+    up = np.minimum(np.where(up_tie, table.tie_cost, _BIG), brace)
+    down = np.minimum(np.where(down_tie, table.tie_cost, _BIG), brace)
+    up_kind = np.where(np.where(up_tie, table.tie_cost, _BIG) <= brace, 0, 1)
+    down_kind = np.where(np.where(down_tie, table.tie_cost, _BIG) <= brace, 0, 1)
+    return up, down, up_kind, down_kind
+
+
+def repair(table: BayTable, add: Additions) -> Additions | None:
+    """Add cheap members until the free frame is strongly connected.
+
+    Repeatedly takes a component with no arc leaving it (a sink of the
+    condensation) and adds the cheapest member giving an arc out of it,
+    preferring arcs into a source component; then the same for components
+    with no arc entering. O(components x RC).
+
+    Returns:
+        The repaired additions, or None if no allowed member can finish the job.
+    """
+    r_count = table.rows
+    cur = Additions(add.braces.copy(), add.rising.copy(), add.falling.copy())
+    while True:
+        count, labels = strong_labels(table, cur)
+        if count == 1:
+            return cur
+        row_lab, col_lab = labels[:r_count], labels[r_count:]
+        up_arcs = cur.up(table) > 0
+        down_arcs = cur.down(table) > 0
+        cross_up = up_arcs & (row_lab[:, None] != col_lab[None, :])
+        cross_down = down_arcs & (row_lab[:, None] != col_lab[None, :])
+        has_out = np.zeros(count, dtype=bool)
+        has_in = np.zeros(count, dtype=bool)
+        has_out[row_lab[np.nonzero(cross_up)[0]]] = True
+        has_in[col_lab[np.nonzero(cross_up)[1]]] = True
+        has_out[col_lab[np.nonzero(cross_down)[1]]] = True
+        has_in[row_lab[np.nonzero(cross_down)[0]]] = True
+        up, down, up_kind, down_kind = _arc_prices(table, cur)
+        sinks = np.flatnonzero(~has_out)
+        sources = np.flatnonzero(~has_in)
+        if len(sinks):
+            comp, leave = int(sinks[0]), True
+        else:
+            comp, leave = int(sources[0]), False
+        in_s_row = row_lab == comp
+        in_s_col = col_lab == comp
+        target_row = np.isin(row_lab, sources) if leave else np.isin(row_lab, sinks)
+        target_col = np.isin(col_lab, sources) if leave else np.isin(col_lab, sinks)
+        if leave:
+            # up arcs from rows in S to columns outside; down arcs from columns in S to rows outside
+            up_mask = in_s_row[:, None] & ~in_s_col[None, :]
+            down_mask = ~in_s_row[:, None] & in_s_col[None, :]
+            up_pref = up_mask & target_col[None, :]
+            down_pref = down_mask & target_row[:, None]
+        else:
+            up_mask = ~in_s_row[:, None] & in_s_col[None, :]
+            down_mask = in_s_row[:, None] & ~in_s_col[None, :]
+            up_pref = up_mask & target_row[:, None]
+            down_pref = down_mask & target_col[None, :]
+        choice = None
+        for um, dm in ((up_pref, down_pref), (up_mask, down_mask)):
+            cu = np.where(um, up, _BIG)
+            cd = np.where(dm, down, _BIG)
+            iu, idn = int(cu.argmin()), int(cd.argmin())
+            best = min(cu.flat[iu], cd.flat[idn])
+            if best < _BIG:
+                choice = (True, iu) if cu.flat[iu] <= cd.flat[idn] else (False, idn)
+                break
+        if choice is None:
+            return None
+        is_up, flat = choice
+        i, j = divmod(flat, table.cols)
+        kind = (up_kind if is_up else down_kind)[i, j]
+        if kind == 1:
+            cur.braces[i, j] += 1
+        elif is_up:
+            cur.rising[i, j] += 1
+        else:
+            cur.falling[i, j] += 1
+
+
+def prune(table: BayTable, add: Additions) -> Additions:
+    """Drop new members (dearest first) and turn braces into ties while the frame stays stable.
+
+    Args:
+        table: The frame's table.
+        add: A stable set of additions.
+
+    Returns:
+        Additions no more expensive, still stable, with no member removable.
+    """
+    cur = Additions(add.braces.copy(), add.rising.copy(), add.falling.copy())
+    items: list[tuple[int, int, int, str]] = []
+    for name, arr, price in (("b", cur.braces, table.brace_cost), ("r", cur.rising, table.tie_cost),
+                             ("f", cur.falling, table.tie_cost)):  # fmt: skip
+        for i, j in zip(*np.nonzero(arr), strict=True):
+            items.append((-int(price[i, j]), int(i), int(j), name))
+    items.sort()
+    arrays = {"b": cur.braces, "r": cur.rising, "f": cur.falling}
+    for _, i, j, name in items:
+        arr = arrays[name]
+        if arr[i, j] == 0:
+            continue
+        arr[i, j] -= 1
+        if strong_labels(table, cur)[0] == 1:
+            continue
+        if name == "b" and table.tie_ok and table.tie_cost[i, j] < table.brace_cost[i, j]:
+            for tie_name, ok in (("r", table.rising_free), ("f", table.falling_free)):
+                tarr = arrays[tie_name]
+                if ok[i, j] and tarr[i, j] == 0:
+                    tarr[i, j] += 1
+                    if strong_labels(table, cur)[0] == 1:
+                        break
+                    tarr[i, j] -= 1
+            else:
+                arr[i, j] += 1
+            continue
+        arr[i, j] += 1
+    return cur
+
+
+def _fit(table: BayTable, add: Additions) -> Additions:
+    """Keep only the members of a pattern that the bays can take."""
+    slots = table.free_slots
+    braces = np.where(table.brace_ok, np.minimum(add.braces, slots), 0)
+    rising = np.where(table.rising_tie_ok & (braces + add.rising <= slots), add.rising, 0)
+    falling = np.where(table.falling_tie_ok & (braces + rising + add.falling <= slots), add.falling, 0)
+    return Additions(braces.astype(np.int64), rising.astype(np.int64), falling.astype(np.int64))
+
+
+def pattern_starts(table: BayTable, *, tries: int = 12, seed: int = 0) -> Additions | None:
+    """Closed-form patterns laid on the frame under row/column shuffles, then repaired and pruned.
+
+    On near-uniform frames (a grid with an opening) the complete-frame
+    optimum is usually a few repairs away from the true one, which the cut
+    model then only has to prove. Deterministic for a given seed.
+
+    Returns:
+        The cheapest stable layout found, or None.
+    """
+    from bracegrid.shortcuts import pattern
+
+    rng = np.random.default_rng(seed)
+    kinds = []
+    if table.brace_ok.any():
+        kinds.append("tree")
+    if table.tie_ok:
+        kinds.append("cycle")
+        if table.brace_ok.any():
+            kinds.append("mixed")
+    best: Additions | None = None
+    best_cost = 0
+    row_order = np.argsort(table.tie_cost.mean(axis=1), kind="stable")
+    col_order = np.argsort(table.tie_cost.mean(axis=0), kind="stable")
+    for attempt in range(tries):
+        if attempt == 0:
+            rows, cols = np.arange(table.rows), np.arange(table.cols)
+        elif attempt == 1:
+            rows, cols = row_order, col_order
+        else:
+            rows, cols = rng.permutation(table.rows), rng.permutation(table.cols)
+        for kind in kinds:
+            base = pattern(table.rows, table.cols, kind)
+            placed = Additions.empty(table.rows, table.cols)
+            for arr_in, arr_out in ((base.braces, placed.braces), (base.rising, placed.rising),
+                                    (base.falling, placed.falling)):  # fmt: skip
+                arr_out[np.ix_(rows, cols)] = arr_in
+            got = constructive(table, _fit(table, placed))
+            if got is not None and (best is None or got.cost(table) < best_cost):
+                best, best_cost = got, got.cost(table)
+    return best
+
+
+def constructive(table: BayTable, start: Additions | None = None) -> Additions | None:
+    """Repair then prune, from ``start`` or from nothing.
+
+    Returns:
+        A stable set of additions, or None if the allowed members cannot make the frame stable.
+    """
+    base = start if start is not None else Additions.empty(table.rows, table.cols)
+    fixed = repair(table, base)
+    return None if fixed is None else prune(table, fixed)
+
+
+def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> Additions | None:
+    """Greedy layout of a free frame whose every cut has k + 1 member arcs, then pruned.
+
+    Repeatedly takes a violated cut (a minimum cut with too few arcs) and adds
+    the cheapest member giving an arc across it; then drops new members,
+    dearest first, while every cut stays satisfied.
+
+    Returns:
+        The additions, or None if the allowed members cannot satisfy some cut.
+    """
+    from bracegrid.cutmodel import violated_cuts
+
+    r_count = table.rows
+    cur = Additions.empty(table.rows, table.cols) if start is None else Additions(
+        start.braces.copy(), start.rising.copy(), start.falling.copy()
+    )
+    while True:
+        cuts = violated_cuts(table, cur, k)
+        if not cuts:
+            break
+        s = cuts[0]
+        in_row = np.array([i in s for i in range(r_count)])
+        in_col = np.array([r_count + j in s for j in range(table.cols)])
+        up, down, up_kind, down_kind = _arc_prices(table, cur)
+        cu = np.where(in_row[:, None] & ~in_col[None, :], up, _BIG)
+        cd = np.where(~in_row[:, None] & in_col[None, :], down, _BIG)
+        iu, idn = int(cu.argmin()), int(cd.argmin())
+        if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
+            return None
+        is_up = cu.flat[iu] <= cd.flat[idn]
+        i, j = divmod(iu if is_up else idn, table.cols)
+        if (up_kind if is_up else down_kind)[i, j] == 1:
+            cur.braces[i, j] += 1
+        elif is_up:
+            cur.rising[i, j] += 1
+        else:
+            cur.falling[i, j] += 1
+    items = []
+    for name, arr, price in (("b", cur.braces, table.brace_cost), ("r", cur.rising, table.tie_cost),
+                             ("f", cur.falling, table.tie_cost)):  # fmt: skip
+        for i, j in zip(*np.nonzero(arr), strict=True):
+            items.extend([(-int(price[i, j]), int(i), int(j), name)] * int(arr[i, j]))
+    items.sort()
+    arrays = {"b": cur.braces, "r": cur.rising, "f": cur.falling}
+    for _, i, j, name in items:
+        arrays[name][i, j] -= 1
+        if violated_cuts(table, cur, k):
+            arrays[name][i, j] += 1
+    return cur
