@@ -10,7 +10,7 @@ import argparse
 import json
 import sys
 from collections.abc import Callable, Sequence
-from typing import Any, TextIO
+from typing import IO, Any, TextIO
 
 from bracegrid._version import __version__
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
@@ -150,6 +150,71 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     return EXIT_OK
 
 
+def _bytes_writer(data: bytes) -> Callable[[IO[bytes]], None]:
+    def put(handle: IO[bytes]) -> None:
+        handle.write(data)
+
+    return put
+
+
+def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
+    from datetime import date
+    from pathlib import Path
+
+    from rich.progress import Progress
+
+    from bracegrid.compare import StrategyKey, compare_project
+    from bracegrid.drawing import build_drawing, dxf_bytes
+    from bracegrid.loading import load_project
+    from bracegrid.optimize import SolveOptions
+    from bracegrid.report import compare_dict, render_compare, render_compare_csv
+    from bracegrid.saving import write_atomic
+    from bracegrid.webreport import render_html
+
+    if not args.time_limit > 0:
+        msg = f"--time-limit {args.time_limit}: give a positive number of seconds"
+        raise InputError(msg)
+    if args.workers < 1:
+        msg = f"--workers {args.workers}: give at least 1"
+        raise InputError(msg)
+    project = load_project(args.project)
+    frames = _frames(project, args.frame)
+    source = Path(args.project)
+    folder = Path(args.out) if args.out else source.with_name(f"{source.stem}-compare")
+    if folder.exists() and not folder.is_dir():
+        msg = f"--out {folder}: exists and is not a folder; give a folder path"
+        raise InputError(msg)
+    options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
+    total = len(frames) * len(StrategyKey)
+    show = not args.json and sys.stderr.isatty()
+    with Progress(transient=True, disable=not show) as progress:
+        task = progress.add_task("comparing", total=total)
+
+        def step(frame_name: str, key: StrategyKey) -> None:
+            progress.update(task, description=f"{frame_name}: {key.value}")
+            progress.advance(task)
+
+        comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
+    today = date.today()
+    files: dict[str, bytes] = {f"{source.stem}-compare.csv": render_compare_csv(comparison).encode("utf-8")}
+    for key in StrategyKey:
+        solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
+        if solved:
+            files[f"{source.stem}-{key.value}.dxf"] = dxf_bytes(build_drawing(project, frames=solved, when=today).doc)
+    page = render_html(comparison, when=today, time_limit=args.time_limit)
+    files["report.html"] = page.encode("utf-8")
+    written = [write_atomic(folder / name, _bytes_writer(data)) for name, data in files.items()]
+    if args.json:
+        payload = compare_dict(comparison)
+        payload["files"] = [str(p) for p in written]
+        _emit(out, payload)
+    else:
+        out.write(render_compare(comparison))
+        for path in written:
+            out.write(f"wrote {path}\n")
+    return EXIT_OK
+
+
 def _add_common(p: argparse.ArgumentParser) -> None:
     p.add_argument("project", help="project file (TOML)")
     p.add_argument("--frame", metavar="NAME", help="only this frame (default: every frame)")
@@ -213,6 +278,21 @@ def build_parser() -> argparse.ArgumentParser:
     opt.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
     opt.set_defaults(handler=_cmd_optimize)
+
+    cmp_ = sub.add_parser(
+        "compare",
+        help="cost braces-only, ties-only, mixed, mixed N-1 and a rule-of-thumb layout side by side",
+        description="Solve every frame under five strategies and write a comparison table (CSV), one DXF per "
+        "strategy and a self-contained report.html. Members in place are kept; proposed ones are dropped.",
+    )
+    _add_common(cmp_)
+    cmp_.add_argument("--time-limit", type=float, default=60.0, metavar="S",
+                      help="seconds per frame and strategy (default 60)")  # fmt: skip
+    cmp_.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
+    cmp_.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
+    cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
+    cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
+    cmp_.set_defaults(handler=_cmd_compare)
     return parser
 
 
@@ -258,7 +338,7 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     except KeyboardInterrupt:
         stderr.write("interrupted\n")
         return 130
-    except Exception as exc:  # noqa: BLE001 - last line of defence: no traceback for users
+    except Exception as exc:
         stderr.write(
             f"internal error ({type(exc).__name__}: {exc}). This is a bracegrid bug; "
             "please report it with the project file.\n"
