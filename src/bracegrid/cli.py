@@ -13,7 +13,7 @@ from collections.abc import Callable, Sequence
 from typing import IO, Any, TextIO
 
 from bracegrid._version import __version__
-from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
+from bracegrid.errors import BraceGridError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.model import Frame, Project
 
 EXIT_OK = 0
@@ -22,6 +22,13 @@ EXIT_INPUT = 2
 EXIT_INFEASIBLE = 3
 EXIT_LIMIT = 4
 EXIT_INTERNAL = 70
+
+#: How each error is labelled on stderr and which exit code it gives (first match wins).
+_EXIT_FOR: tuple[tuple[type[BraceGridError], str, int], ...] = (
+    (InfeasibleError, "infeasible", EXIT_INFEASIBLE),
+    (SolverLimitError, "solver limit", EXIT_LIMIT),
+    (BraceGridError, "error", EXIT_INPUT),  # InputError, ExportError
+)
 
 
 def _frames(project: Project, name: str | None) -> tuple[Frame, ...]:
@@ -320,21 +327,10 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     handler: Handler = args.handler
     try:
         return handler(args, stdout)
-    except InputError as exc:
-        stderr.write(f"error: {exc}\n")
-        return EXIT_INPUT
-    except InfeasibleError as exc:
-        stderr.write(f"infeasible: {exc}\n")
-        return EXIT_INFEASIBLE
-    except SolverLimitError as exc:
-        stderr.write(f"solver limit: {exc}\n")
-        return EXIT_LIMIT
-    except ExportError as exc:
-        stderr.write(f"error: {exc}\n")
-        return EXIT_INPUT
     except BraceGridError as exc:
-        stderr.write(f"error: {exc}\n")
-        return EXIT_INPUT
+        label, code = next((lab, c) for kind, lab, c in _EXIT_FOR if isinstance(exc, kind))
+        stderr.write(f"{label}: {exc}\n")
+        return code
     except KeyboardInterrupt:
         stderr.write("interrupted\n")
         return 130
