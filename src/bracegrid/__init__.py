@@ -20,6 +20,15 @@ from bracegrid.model import (
     Supports,
     Verdict,
 )
+from bracegrid.optimize import (
+    FrameSolution,
+    ProgressEvent,
+    ProjectSolution,
+    SolveOptions,
+    SolveStatus,
+    optimize_frame,
+    optimize_project,
+)
 from bracegrid.preview import PreviewFormat, render_preview, write_preview
 from bracegrid.rigidity import check_frame, check_layout, find_critical_members, is_stable
 from bracegrid.saving import render_project, save_project
@@ -33,6 +42,7 @@ __all__ = [
     "DrawnSheet",
     "ExportError",
     "Frame",
+    "FrameSolution",
     "InfeasibleError",
     "InputError",
     "LoosePart",
@@ -40,8 +50,12 @@ __all__ = [
     "MemberKind",
     "Opening",
     "PreviewFormat",
+    "ProgressEvent",
     "Project",
+    "ProjectSolution",
     "Racking",
+    "SolveOptions",
+    "SolveStatus",
     "SolverLimitError",
     "Supports",
     "Verdict",
@@ -54,6 +68,8 @@ __all__ = [
     "find_critical_members",
     "is_stable",
     "load_project",
+    "optimize_frame",
+    "optimize_project",
     "parse_member_refs",
     "parse_project",
     "render_bom_csv",

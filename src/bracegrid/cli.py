@@ -118,7 +118,7 @@ def _parse_allow(text: str | None) -> frozenset[Any] | None:
 
 
 def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
-    from bracegrid.loading import load_project
+    from bracegrid.loading import load_project, parse_member_refs
     from bracegrid.optimize import SolveOptions, optimize_project
     from bracegrid.report import optimize_dict, progress_line, render_optimize
     from bracegrid.saving import save_project
@@ -128,12 +128,22 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
         problems.append(f"--time-limit {args.time_limit}: give a positive number of seconds")
     if args.workers < 1:
         problems.append(f"--workers {args.workers}: give at least 1")
+    if args.redundancy is not None and args.redundancy < 0:
+        problems.append(f"--redundancy {args.redundancy}: give 0 (stable) or more (members that may be lost)")
+    if args.keep_clear and not args.without:
+        problems.append("--keep-clear only applies with --without MEMBER ...")
     if problems:
         raise InputError(problems)
     project = load_project(args.project)
     frames = _frames(project, args.frame)
+    target = _without_frame(project, args)
+    without = {target.name: parse_member_refs(target, args.without)} if target is not None else {}
     options = SolveOptions(
-        time_limit=args.time_limit, workers=args.workers, seed=args.seed, allow=_parse_allow(args.allow)
+        time_limit=args.time_limit,
+        workers=args.workers,
+        seed=args.seed,
+        allow=_parse_allow(args.allow),
+        redundancy=args.redundancy,
     )
     live = sys.stderr if (not args.json and sys.stderr.isatty()) else None
 
@@ -142,7 +152,14 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
             live.write("\r\033[K" + progress_line(event))
             live.flush()
 
-    solution = optimize_project(project, options=options, frame_names=[f.name for f in frames], on_progress=show)
+    solution = optimize_project(
+        project,
+        options=options,
+        frame_names=[f.name for f in frames],
+        on_progress=show,
+        without=without,
+        keep_clear=args.keep_clear,
+    )
     if live is not None:
         live.write("\r\033[K")
         live.flush()
@@ -284,6 +301,16 @@ def build_parser() -> argparse.ArgumentParser:
     opt.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
     opt.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
+    opt.add_argument(
+        "--without", nargs="+", default=[], metavar="MEMBER",
+        help=f"repair: take these members out first, keep the rest (needs --frame if several frames): "
+        f"{MEMBER_REF_HELP}",
+    )  # fmt: skip
+    opt.add_argument("--keep-clear", action="store_true", help="with --without: leave those bays clear")
+    opt.add_argument(
+        "--redundancy", type=int, metavar="K",
+        help="survive the loss of any K members (1 = N-1; default: each frame's 'redundancy')",
+    )  # fmt: skip
     opt.set_defaults(handler=_cmd_optimize)
 
     cmp_ = sub.add_parser(

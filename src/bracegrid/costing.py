@@ -93,7 +93,9 @@ class BayTable:
         return self.falling_free & self.tie_ok
 
 
-def bay_table(frame: Frame, costs: CostCatalogue, members: tuple[Member, ...], allow: frozenset[MemberKind]) -> BayTable:
+def bay_table(
+    frame: Frame, costs: CostCatalogue, members: tuple[Member, ...], allow: frozenset[MemberKind]
+) -> BayTable:
     """Tabulate costs, free diagonals and existing arcs of a frame.
 
     Args:

@@ -15,9 +15,11 @@ optimal for the full model.
 
 from __future__ import annotations
 
+import itertools
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 from scipy.sparse import csr_matrix
@@ -121,7 +123,8 @@ def _reachable(residual: csr_matrix, start: int) -> list[int]:
     positive = residual.copy()
     positive.data = (positive.data > 0).astype(np.int8)
     positive.eliminate_zeros()
-    return breadth_first_order(positive, start, directed=True, return_predecessors=False).tolist()
+    order: list[int] = breadth_first_order(positive, start, directed=True, return_predecessors=False).tolist()
+    return order
 
 
 def _interchangeable(sizes: tuple[int, ...], slots: IntArray, kept: IntArray) -> list[list[int]]:
@@ -146,11 +149,11 @@ class CutModel:
         r_count, c_count = table.rows, table.cols
         self.n = r_count + c_count
         m = self.model
-        self.b: dict[tuple[int, int], object] = {}
-        self.tr: dict[tuple[int, int], object] = {}
-        self.tf: dict[tuple[int, int], object] = {}
-        self.up: dict[tuple[int, int], list[object]] = {}
-        self.down: dict[tuple[int, int], list[object]] = {}
+        self.b: dict[tuple[int, int], Any] = {}
+        self.tr: dict[tuple[int, int], Any] = {}
+        self.tf: dict[tuple[int, int], Any] = {}
+        self.up: dict[tuple[int, int], list[Any]] = {}
+        self.down: dict[tuple[int, int], list[Any]] = {}
         terms = []
         coefs = []
         slots = table.free_slots
@@ -159,9 +162,9 @@ class CutModel:
                 s = int(slots[i, j])
                 if s == 0:
                     continue
-                here: list[object] = []
-                up: list[object] = []
-                down: list[object] = []
+                here: list[Any] = []
+                up: list[Any] = []
+                down: list[Any] = []
                 if table.brace_ok[i, j]:
                     top = min(s, 1 if k == 0 else 2)
                     v = m.new_bool_var(f"b{i}_{j}") if top == 1 else m.new_int_var(0, top, f"b{i}_{j}")
@@ -186,20 +189,20 @@ class CutModel:
                     terms.append(v)
                     coefs.append(int(table.tie_cost[i, j]))
                 if len(here) > 1:
-                    m.add(sum(here) <= s)  # type: ignore[arg-type]
+                    m.add(sum(here) <= s)
                 if k == 0 and (i, j) in self.b:
                     # A tie beside a brace adds no arc; dropping it never costs more.
                     for t in (self.tr.get((i, j)), self.tf.get((i, j))):
                         if t is not None:
-                            m.add(self.b[i, j] + t <= 1)  # type: ignore[operator]
+                            m.add(self.b[i, j] + t <= 1)
                 self.up[i, j] = up
                 self.down[i, j] = down
         self.objective = cp_model.LinearExpr.weighted_sum(terms, coefs) if terms else 0
         m.minimize(self.objective)
         self.cuts: set[frozenset[int]] = set()
-        for v in range(self.n):
-            self.add_cut(frozenset({v}))
-            self.add_cut(frozenset(range(self.n)) - {v})
+        for node in range(self.n):
+            self.add_cut(frozenset({node}))
+            self.add_cut(frozenset(range(self.n)) - {node})
         self.partitions: set[tuple[int, ...]] = set()
         if k == 0:
             self.add_partition(np.arange(self.n))
@@ -267,10 +270,10 @@ class CutModel:
             span = (t.cols if axis == 0 else t.rows) * 2 + 1
             for members in classes:
                 sigs = [self._signature(axis, idx, span) for idx in members]
-                for a, b in zip(sigs, sigs[1:], strict=False):
-                    self.model.add(a >= b)  # type: ignore[operator]
+                for a, b in itertools.pairwise(sigs):
+                    self.model.add(a >= b)
 
-    def _signature(self, axis: int, idx: int, span: int) -> object:
+    def _signature(self, axis: int, idx: int, span: int) -> Any:
         from ortools.sat.python import cp_model
 
         bays = [(idx, j) for j in range(self.table.cols)] if axis == 0 else [(i, idx) for i in range(self.table.rows)]
@@ -301,7 +304,7 @@ class CutModel:
         need = self.k + 1 - int(t.exist_up[up_mask].sum() + t.exist_down[down_mask].sum())
         if need <= 0:
             return True
-        terms: list[object] = []
+        terms: list[Any] = []
         for i, j in zip(*np.nonzero(up_mask), strict=True):
             terms.extend(self.up.get((int(i), int(j)), ()))
         for i, j in zip(*np.nonzero(down_mask), strict=True):
@@ -309,13 +312,13 @@ class CutModel:
         if not terms:
             self.model.add_bool_or([])  # no member can cross this cut: infeasible
             return True
-        self.model.add(sum(terms) >= need)  # type: ignore[arg-type]
+        self.model.add(sum(terms) >= need)
         return True
 
-    def read(self, solver: object) -> Additions:
+    def read(self, solver: Any) -> Additions:
         """The solver's current answer as additions."""
         add = Additions.empty(self.table.rows, self.table.cols)
-        value = solver.value  # type: ignore[attr-defined]
+        value = solver.value
         for (i, j), v in self.b.items():
             add.braces[i, j] = value(v)
         for (i, j), v in self.tr.items():
@@ -326,13 +329,13 @@ class CutModel:
 
     def hint(self, add: Additions) -> None:
         """Use a layout as the solver's starting point."""
-        self.model.clear_hints()
+        self.model.clear_hints()  # type: ignore[no-untyped-call]
         for (i, j), v in self.b.items():
-            self.model.add_hint(v, int(add.braces[i, j]))  # type: ignore[arg-type]
+            self.model.add_hint(v, int(add.braces[i, j]))
         for (i, j), v in self.tr.items():
-            self.model.add_hint(v, int(add.rising[i, j]))  # type: ignore[arg-type]
+            self.model.add_hint(v, int(add.rising[i, j]))
         for (i, j), v in self.tf.items():
-            self.model.add_hint(v, int(add.falling[i, j]))  # type: ignore[arg-type]
+            self.model.add_hint(v, int(add.falling[i, j]))
 
 
 def configure(params: object, *, workers: int, seed: int, seconds: float) -> None:
@@ -342,13 +345,33 @@ def configure(params: object, *, workers: int, seed: int, seconds: float) -> Non
     default search uses no LP, so ``linearization_level = 2`` is set; with
     several workers the portfolio is led by the LP-heavy ``max_lp`` worker.
     """
-    p = params
-    p.num_workers = max(1, workers)  # type: ignore[attr-defined]
-    p.random_seed = seed  # type: ignore[attr-defined]
-    p.max_time_in_seconds = max(0.01, seconds)  # type: ignore[attr-defined]
-    p.linearization_level = 2  # type: ignore[attr-defined]
+    p: Any = params
+    p.num_workers = max(1, workers)
+    p.random_seed = seed
+    p.max_time_in_seconds = max(0.01, seconds)
+    p.linearization_level = 2
     if workers > 1:
-        p.subsolvers.extend(["max_lp", "quick_restart"])  # type: ignore[attr-defined]
+        p.subsolvers.extend(["max_lp", "quick_restart"])
+
+
+class _Collector:
+    """CP-SAT callback keeping the last few answers met during a solve."""
+
+    def __new__(cls, cm: CutModel) -> Any:
+        from ortools.sat.python import cp_model
+
+        class _Impl(cp_model.CpSolverSolutionCallback):
+            def __init__(self) -> None:
+                super().__init__()
+                self.seen: list[Additions] = []
+
+            def on_solution_callback(self) -> None:
+                self.seen.append(cm.read(self))
+                del self.seen[:-8]
+
+        return _Impl()
+
+    seen: list[Additions]
 
 
 @dataclass(frozen=True, slots=True)
@@ -381,6 +404,7 @@ def solve_with_cuts(
     seed: int,
     on_step: Callable[[LoopReport], None] | None = None,
     initial_bound: int = 0,
+    lns_rounds: int = 0,
 ) -> CutSolveResult:
     """Run the lazy-cut loop until proven optimal or the deadline.
 
@@ -396,6 +420,7 @@ def solve_with_cuts(
         seed: CP-SAT random seed.
         on_step: Called after every solver call.
         initial_bound: A lower bound known beforehand (e.g. the closed form of the complete frame).
+        lns_rounds: Window re-optimisations of the incumbent after each round (0 = none).
 
     Returns:
         The best layout, a proven lower bound and whether it is optimal.
@@ -419,7 +444,8 @@ def solve_with_cuts(
         solver = cp_model.CpSolver()
         p = solver.parameters
         configure(p, workers=workers, seed=seed, seconds=remaining)
-        status = solver.solve(cm.model)
+        collector: Any = _Collector(cm)
+        status = solver.solve(cm.model, collector)
         iterations += 1
         if status == cp_model.INFEASIBLE:
             if best is None:
@@ -431,7 +457,7 @@ def solve_with_cuts(
             break
         bound = max(bound, int(np.ceil(solver.best_objective_bound - 1e-6)))
         if status == cp_model.OPTIMAL:
-            bound = max(bound, int(round(solver.objective_value)))
+            bound = max(bound, round(solver.objective_value))
         relaxed = cm.read(solver)
         cuts = violated_cuts(table, relaxed, k)
         candidate = relaxed if not cuts else improve(relaxed)
@@ -442,14 +468,108 @@ def solve_with_cuts(
         if best_cost is not None and bound >= best_cost:
             proven = True
             bound = best_cost
+        if (
+            not proven
+            and best is not None
+            and lns_rounds > 0
+            and min(table.rows, table.cols) > 4
+            and (iterations > 1 or table.rows * table.cols > 400)
+        ):
+            better = improve_by_windows(
+                table, best, k=k, rounds=lns_rounds, seed=seed + iterations, deadline=deadline,
+                row_sizes=row_sizes, col_sizes=col_sizes,
+            )  # fmt: skip
+            if better is not None and better.cost(table) < (best_cost or 0):
+                best, best_cost = better, better.cost(table)
+                if bound >= best_cost:
+                    proven, bound = True, best_cost
         if on_step is not None:
             on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
         if proven or status != cp_model.OPTIMAL:
             break
         for s in cuts:
             cm.add_cut(s)
+        # Answers met on the way violate other sets: their cuts come for free.
+        for other in collector.seen[:-1]:
+            for s in violated_cuts(table, other, k):
+                cm.add_cut(s)
         if k == 0 and cuts:
             from bracegrid.warmstart import strong_labels
 
             cm.add_partition(strong_labels(table, relaxed)[1])
     return CutSolveResult(best, bound, proven, iterations, len(cm.cuts))
+
+
+def window_table(table: BayTable, fixed: Additions, rows: IntArray, cols: IntArray) -> BayTable:
+    """The table with every bay outside rows x cols frozen at ``fixed`` (its members then count as kept)."""
+    import dataclasses
+
+    inside = np.zeros((table.rows, table.cols), dtype=bool)
+    inside[np.ix_(rows, cols)] = True
+    outside = ~inside
+    return dataclasses.replace(
+        table,
+        rising_free=table.rising_free & inside,
+        falling_free=table.falling_free & inside,
+        brace_ok=table.brace_ok & inside,
+        exist_up=table.exist_up + np.where(outside, fixed.braces + fixed.rising, 0),
+        exist_down=table.exist_down + np.where(outside, fixed.braces + fixed.falling, 0),
+    )
+
+
+def improve_by_windows(
+    table: BayTable,
+    incumbent: Additions,
+    *,
+    k: int,
+    rounds: int,
+    seed: int,
+    deadline: float,
+    row_sizes: tuple[int, ...],
+    col_sizes: tuple[int, ...],
+) -> Additions | None:
+    """Large-neighbourhood search: re-optimise the incumbent inside random row x column windows.
+
+    Members outside a window are frozen; inside it the cut model is solved
+    exactly (small), so the result never costs more than the incumbent.
+
+    Returns:
+        An improved layout, or None if no window helped.
+    """
+    from bracegrid.warmstart import constructive, constructive_redundant
+
+    rng = np.random.default_rng(seed)
+    best = incumbent
+    best_cost = incumbent.cost(table)
+    improved = False
+    side_r = min((table.rows + 1) // 2, 10)
+    side_c = min((table.cols + 1) // 2, 10)
+    for _ in range(rounds):
+        if deadline - time.monotonic() < 0.5:
+            break
+        rows = np.sort(rng.choice(table.rows, size=side_r, replace=False))
+        cols = np.sort(rng.choice(table.cols, size=side_c, replace=False))
+        sub = window_table(table, best, rows, cols)
+        inside = np.zeros((table.rows, table.cols), dtype=np.int64)
+        inside[np.ix_(rows, cols)] = 1
+        start = Additions(best.braces * inside, best.rising * inside, best.falling * inside)
+
+        def fix(a: Additions, sub: BayTable = sub) -> Additions | None:
+            return constructive(sub, a) if k == 0 else constructive_redundant(sub, a, k)
+
+        got = solve_with_cuts(
+            sub, k=k, row_sizes=row_sizes, col_sizes=col_sizes, incumbent=start, improve=fix,
+            deadline=min(deadline, time.monotonic() + 1.0), workers=1, seed=seed,
+        )  # fmt: skip
+        if got.additions is None:
+            continue
+        outside = 1 - inside
+        merged = Additions(
+            got.additions.braces * inside + best.braces * outside,
+            got.additions.rising * inside + best.rising * outside,
+            got.additions.falling * inside + best.falling * outside,
+        )
+        cost = merged.cost(table)
+        if cost < best_cost:
+            best, best_cost, improved = merged, cost, True
+    return best if improved else None

@@ -22,7 +22,7 @@ from __future__ import annotations
 
 import dataclasses
 import time
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from enum import Enum
 
@@ -147,8 +147,8 @@ def _max_additions(table: BayTable, k: int) -> Additions:
 
 def _infeasible_reasons(frame: Frame, table: BayTable, allow: frozenset[MemberKind], k: int) -> list[str]:
     """Why no layout exists (empty when one does)."""
-    from bracegrid.rigidity import redundancy_of
     from bracegrid.report import anchor_words, describe_part
+    from bracegrid.rigidity import redundancy_of
 
     full = _max_additions(table, k)
     kept = tuple(frame.members)
@@ -172,13 +172,13 @@ def _infeasible_reasons(frame: Frame, table: BayTable, allow: frozenset[MemberKi
                     f"frame {name!r}: column {j + 1} has every bay blocked, so nothing ties it to the rest; "
                     "unblock a bay in that column or pin the base"
                 )
-        if allow == frozenset({MemberKind.TIE}) and min(table.rows, table.cols) == 1:
-            x_bays = (table.rising_free & table.falling_free).any()
-            if not x_bays and not verdict.stable:
-                reasons.append(
-                    f"frame {name!r}: ties only with supports free on a 1-row (or 1-column) frame needs both "
-                    "diagonals of some bay (an X of ties); free a bay's two diagonals or allow braces"
-                )
+        if allow == frozenset({MemberKind.TIE}) and min(table.rows, table.cols) == 1 and not verdict.stable:
+            line = "row" if table.rows == 1 else "column"
+            reasons.append(
+                f"frame {name!r}: ties only with supports free on a 1-{line} frame needs both diagonals of "
+                f"every bay (an X of ties, or a kept brace): each {'column' if line == 'row' else 'row'} is "
+                "held only through its own bay; clear those bays, allow braces or pin the base"
+            )
     if not verdict.stable:
         if not reasons:
             anchor = anchor_words(verdict)
@@ -345,6 +345,7 @@ def _solve_cp(
         seed=options.seed,
         on_step=step,
         initial_bound=floor,
+        lns_rounds=4,
     )
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise --time-limit"
@@ -399,12 +400,62 @@ def _finish(
     )
 
 
+def repair_frame(
+    frame: Frame,
+    costs: CostCatalogue,
+    without: Sequence[Member],
+    *,
+    keep_clear: bool = False,
+    options: SolveOptions = SolveOptions(),
+    on_progress: Progress | None = None,
+) -> FrameSolution:
+    """Take members out, keep every other member, and add the cheapest members that restore stability.
+
+    Args:
+        frame: The frame and its members.
+        costs: Prices.
+        without: Members taken out (matched by bay and diagonal).
+        keep_clear: Leave the removed members' bays clear (no new member there).
+        options: Solver options (redundancy included).
+        on_progress: Progress callback.
+
+    Returns:
+        The repaired layout; its verdict lists the removed members. Bays kept
+        clear that end up empty are added to the frame's ``blocked`` list.
+
+    Raises:
+        InfeasibleError: If no repair exists (e.g. the cleared bay was the only one left in a row).
+
+    Example:
+        >>> from bracegrid.model import Frame, Member, Diagonal
+        >>> b = MemberKind.BRACE
+        >>> tree = tuple(Member(r, c, b, Diagonal.RISING) for r, c in ((1, 1), (1, 2), (2, 1)))
+        >>> f = Frame("f", (3000, 3000), (2000, 2000), members=tree)
+        >>> sol = repair_frame(f, CostCatalogue(), [tree[2]], keep_clear=True)
+        >>> [m.kind.value + " " + m.label for m in sol.members if not m.existing], sorted(sol.frame.blocked)
+        (['tie r2c2:falling', 'tie r2c2:rising'], [(2, 1)])
+    """
+    gone = {(m.row, m.col, m.diagonal) for m in without}
+    removed = tuple(m for m in frame.members if (m.row, m.col, m.diagonal) in gone)
+    kept = tuple(m for m in frame.members if (m.row, m.col, m.diagonal) not in gone)
+    clear = frozenset(m.bay for m in removed) if keep_clear else frozenset()
+    work = dataclasses.replace(frame, members=kept, blocked=frame.blocked | clear)
+    sol = optimize_frame(work, costs, options=options, on_progress=on_progress)
+    occupied = {m.bay for m in sol.members}
+    blocked = frame.blocked | frozenset(b for b in clear if b not in occupied)
+    final = dataclasses.replace(frame, members=sol.members, blocked=blocked)
+    verdict = dataclasses.replace(sol.verdict, removed=removed)
+    return dataclasses.replace(sol, frame=final, verdict=verdict)
+
+
 def optimize_project(
     project: Project,
     *,
     options: SolveOptions = SolveOptions(),
     frame_names: Sequence[str] | None = None,
     on_progress: Progress | None = None,
+    without: Mapping[str, Sequence[Member]] | None = None,
+    keep_clear: bool = False,
 ) -> ProjectSolution:
     """Optimize every frame of a project (or the named ones).
 
@@ -413,6 +464,8 @@ def optimize_project(
         options: Solver options, applied to each frame.
         frame_names: Only these frames (default: all).
         on_progress: Called with progress events.
+        without: Per frame name, members taken out before optimizing (a repair, see :func:`repair_frame`).
+        keep_clear: Leave the removed members' bays clear.
 
     Returns:
         The solutions and the project with the new layouts in place.
@@ -431,9 +484,17 @@ def optimize_project(
     chosen = [project.frame(n) for n in frame_names] if frame_names is not None else list(project.frames)
     solutions: list[FrameSolution] = []
     reasons: list[str] = []
+    out_of = without or {}
     for frame in chosen:
         try:
-            solutions.append(optimize_frame(frame, project.costs, options=options, on_progress=on_progress))
+            if out_of.get(frame.name):
+                repaired = repair_frame(
+                    frame, project.costs, out_of[frame.name], keep_clear=keep_clear, options=options,
+                    on_progress=on_progress,
+                )  # fmt: skip
+                solutions.append(repaired)
+            else:
+                solutions.append(optimize_frame(frame, project.costs, options=options, on_progress=on_progress))
         except InfeasibleError as exc:
             reasons.extend(exc.reasons)
     if reasons:

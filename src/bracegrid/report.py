@@ -212,6 +212,7 @@ def frame_solution_dict(solution: Any) -> dict[str, Any]:
         "new_ties": parts["new_ties"],
         "diagonal_length_m": parts["length_m"],
         "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
+        "removed": [member_dict(m) for m in solution.verdict.removed],
         "members": [optimize_member_dict(m) for m in solution.members],
     }
 
@@ -265,6 +266,8 @@ def render_optimize(project_name: str, solution: Any) -> str:
     lines.append(f"Total cost {solution.cost:.2f} (added {solution.added_cost:.2f}).")
     for s in solution.frames:
         new = [m for m in s.members if not m.existing]
+        if s.verdict.removed:
+            lines.append(f"{s.frame.name}: repaired without {_members_text(s.verdict.removed)}")
         lines.append(f"{s.frame.name}: {s.method}; survives the loss of any {s.redundancy} member(s)")
         if new:
             lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")

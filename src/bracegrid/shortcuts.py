@@ -153,7 +153,7 @@ def pinned_base_rows(table: BayTable, *, k: int = 0) -> Shortcut | None:
                     state = (min(need, u + b + tr), min(need, d + b + tf))
                     total = cost + c
                     if state not in nxt or total < nxt[state][0]:
-                        pick = picks + [(j, b, tr, tf)] if (b or tr or tf) else picks
+                        pick = [*picks, (j, b, tr, tf)] if (b or tr or tf) else picks
                         nxt[state] = (total, pick)
             best = nxt
         if (need, need) not in best:
