@@ -165,3 +165,15 @@ def test_demo_projects_load_and_check(name: str) -> None:
     data = json.loads(out.getvalue())
     assert code == (0 if data["stable"] else 1)
     assert {f["name"] for f in data["frames"]} == {f.name for f in p.frames}
+
+
+def test_written_files_get_the_usual_permissions(tmp_path: Path) -> None:
+    import os
+    import stat
+
+    from bracegrid.saving import write_text_atomic
+
+    umask = os.umask(0)
+    os.umask(umask)
+    path = write_text_atomic(tmp_path / "x.toml", "a = 1\n")
+    assert stat.S_IMODE(path.stat().st_mode) == 0o666 & ~umask

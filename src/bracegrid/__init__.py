@@ -1,6 +1,8 @@
 """bracegrid: minimum-cost, proven-stable diagonal bracing of rectangular frames."""
 
 from bracegrid._version import __version__
+from bracegrid.bom import Bom, build_bom, render_bom_csv
+from bracegrid.drawing import DrawnSheet, build_drawing, write_dxf
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.geometry import blocked_bays
 from bracegrid.loading import load_project, parse_member_refs, parse_project
@@ -27,14 +29,17 @@ from bracegrid.optimize import (
     optimize_frame,
     optimize_project,
 )
+from bracegrid.preview import PreviewFormat, render_preview, write_preview
 from bracegrid.rigidity import check_frame, check_layout, find_critical_members, is_stable
 from bracegrid.saving import render_project, save_project
 
 __all__ = [
+    "Bom",
     "BraceGridError",
     "CostCatalogue",
     "CostRate",
     "Diagonal",
+    "DrawnSheet",
     "ExportError",
     "Frame",
     "FrameSolution",
@@ -44,6 +49,7 @@ __all__ = [
     "Member",
     "MemberKind",
     "Opening",
+    "PreviewFormat",
     "ProgressEvent",
     "Project",
     "ProjectSolution",
@@ -55,6 +61,8 @@ __all__ = [
     "Verdict",
     "__version__",
     "blocked_bays",
+    "build_bom",
+    "build_drawing",
     "check_frame",
     "check_layout",
     "find_critical_members",
@@ -64,6 +72,10 @@ __all__ = [
     "optimize_project",
     "parse_member_refs",
     "parse_project",
+    "render_bom_csv",
+    "render_preview",
     "render_project",
     "save_project",
+    "write_dxf",
+    "write_preview",
 ]

@@ -10,10 +10,10 @@ import argparse
 import json
 import sys
 from collections.abc import Callable, Sequence
-from typing import Any, TextIO
+from typing import IO, Any, TextIO
 
 from bracegrid._version import __version__
-from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
+from bracegrid.errors import BraceGridError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.model import Frame, Project
 
 EXIT_OK = 0
@@ -22,6 +22,13 @@ EXIT_INPUT = 2
 EXIT_INFEASIBLE = 3
 EXIT_LIMIT = 4
 EXIT_INTERNAL = 70
+
+#: How each error is labelled on stderr and which exit code it gives (first match wins).
+_EXIT_FOR: tuple[tuple[type[BraceGridError], str, int], ...] = (
+    (InfeasibleError, "infeasible", EXIT_INFEASIBLE),
+    (SolverLimitError, "solver limit", EXIT_LIMIT),
+    (BraceGridError, "error", EXIT_INPUT),  # InputError, ExportError
+)
 
 
 def _frames(project: Project, name: str | None) -> tuple[Frame, ...]:
@@ -71,6 +78,35 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
                 "[--keep-clear]\n"
             )
     return EXIT_OK if all(v.stable for v in verdicts) else EXIT_UNSTABLE
+
+
+def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
+    from datetime import date
+    from pathlib import Path
+
+    from bracegrid.drawing import parse_formats, render_outputs, write_outputs
+    from bracegrid.loading import load_project
+    from bracegrid.report import CAUTION
+
+    formats = parse_formats(args.format)
+    project = load_project(args.project)
+    frames = _frames(project, args.frame)
+    source = Path(args.project)
+    folder = Path(args.out) if args.out else source.with_name(f"{source.stem}-drawings")
+    sheets, files = render_outputs(
+        project, stem=source.stem, frames=frames, formats=formats, per_frame=args.per_frame, when=date.today()
+    )
+    written = write_outputs(folder, files)
+    for sheet in sheets:
+        for fs in sheet.frames:
+            v = fs.verdict
+            state = "stable" if v.stable else f"NOT STABLE ({v.racking_modes} racking modes, shaded on the sheet)"
+            out.write(f"{fs.frame.name}: {state}; {len(fs.frame.members)} members\n")
+        out.write(f"sheet {sheet.plan.sheet} at 1:{sheet.plan.scale}\n")
+    for path in written:
+        out.write(f"wrote {path}\n")
+    out.write(f"Caution: {CAUTION}\n")
+    return EXIT_OK
 
 
 def _parse_allow(text: str | None) -> frozenset[Any] | None:
@@ -144,6 +180,71 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     return EXIT_OK
 
 
+def _bytes_writer(data: bytes) -> Callable[[IO[bytes]], None]:
+    def put(handle: IO[bytes]) -> None:
+        handle.write(data)
+
+    return put
+
+
+def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
+    from datetime import date
+    from pathlib import Path
+
+    from rich.progress import Progress
+
+    from bracegrid.compare import StrategyKey, compare_project
+    from bracegrid.drawing import build_drawing, dxf_bytes
+    from bracegrid.loading import load_project
+    from bracegrid.optimize import SolveOptions
+    from bracegrid.report import compare_dict, render_compare, render_compare_csv
+    from bracegrid.saving import write_atomic
+    from bracegrid.webreport import render_html
+
+    if not args.time_limit > 0:
+        msg = f"--time-limit {args.time_limit}: give a positive number of seconds"
+        raise InputError(msg)
+    if args.workers < 1:
+        msg = f"--workers {args.workers}: give at least 1"
+        raise InputError(msg)
+    project = load_project(args.project)
+    frames = _frames(project, args.frame)
+    source = Path(args.project)
+    folder = Path(args.out) if args.out else source.with_name(f"{source.stem}-compare")
+    if folder.exists() and not folder.is_dir():
+        msg = f"--out {folder}: exists and is not a folder; give a folder path"
+        raise InputError(msg)
+    options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
+    total = len(frames) * len(StrategyKey)
+    show = not args.json and sys.stderr.isatty()
+    with Progress(transient=True, disable=not show) as progress:
+        task = progress.add_task("comparing", total=total)
+
+        def step(frame_name: str, key: StrategyKey) -> None:
+            progress.update(task, description=f"{frame_name}: {key.value}")
+            progress.advance(task)
+
+        comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
+    today = date.today()
+    files: dict[str, bytes] = {f"{source.stem}-compare.csv": render_compare_csv(comparison).encode("utf-8")}
+    for key in StrategyKey:
+        solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
+        if solved:
+            files[f"{source.stem}-{key.value}.dxf"] = dxf_bytes(build_drawing(project, frames=solved, when=today).doc)
+    page = render_html(comparison, when=today, time_limit=args.time_limit)
+    files["report.html"] = page.encode("utf-8")
+    written = [write_atomic(folder / name, _bytes_writer(data)) for name, data in files.items()]
+    if args.json:
+        payload = compare_dict(comparison)
+        payload["files"] = [str(p) for p in written]
+        _emit(out, payload)
+    else:
+        out.write(render_compare(comparison))
+        for path in written:
+            out.write(f"wrote {path}\n")
+    return EXIT_OK
+
+
 def _add_common(p: argparse.ArgumentParser) -> None:
     p.add_argument("project", help="project file (TOML)")
     p.add_argument("--frame", metavar="NAME", help="only this frame (default: every frame)")
@@ -175,6 +276,26 @@ def build_parser() -> argparse.ArgumentParser:
     )  # fmt: skip
     check.set_defaults(handler=_cmd_check)
 
+    draw = sub.add_parser(
+        "draw",
+        help="marked-up DXF drawing, PNG/SVG/PDF preview and bill of materials (CSV)",
+        description="Draw every frame as it stands (existing and proposed members) on one sheet: grid, "
+        "dimension chains, braces and ties with the racking sense each tie resists, blocked bays, "
+        "critical members, loose parts, legend, bill of materials and title block.",
+    )
+    draw.add_argument("project", help="project file (TOML)")
+    draw.add_argument("--frame", metavar="NAME", help="only this frame (default: every frame)")
+    draw.add_argument(
+        "--out", metavar="DIR",
+        help="folder for the files (default: <project>-drawings next to the project file)",
+    )  # fmt: skip
+    draw.add_argument(
+        "--format", default="dxf,png", metavar="LIST",
+        help="comma-separated: dxf, svg, png, pdf (default: dxf,png); the bill CSV is always written",
+    )  # fmt: skip
+    draw.add_argument("--per-frame", action="store_true", help="one sheet per frame instead of one for all")
+    draw.set_defaults(handler=_cmd_draw)
+
     opt = sub.add_parser(
         "optimize",
         help="minimum-cost stable layout for every frame (CP-SAT with directed cuts, exact shortcuts)",
@@ -197,6 +318,21 @@ def build_parser() -> argparse.ArgumentParser:
         help="survive the loss of any K members (1 = N-1; default: each frame's 'redundancy')",
     )  # fmt: skip
     opt.set_defaults(handler=_cmd_optimize)
+
+    cmp_ = sub.add_parser(
+        "compare",
+        help="cost braces-only, ties-only, mixed, mixed N-1 and a rule-of-thumb layout side by side",
+        description="Solve every frame under five strategies and write a comparison table (CSV), one DXF per "
+        "strategy and a self-contained report.html. Members in place are kept; proposed ones are dropped.",
+    )
+    _add_common(cmp_)
+    cmp_.add_argument("--time-limit", type=float, default=60.0, metavar="S",
+                      help="seconds per frame and strategy (default 60)")  # fmt: skip
+    cmp_.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
+    cmp_.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
+    cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
+    cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
+    cmp_.set_defaults(handler=_cmd_compare)
     return parser
 
 
@@ -224,21 +360,10 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     handler: Handler = args.handler
     try:
         return handler(args, stdout)
-    except InputError as exc:
-        stderr.write(f"error: {exc}\n")
-        return EXIT_INPUT
-    except InfeasibleError as exc:
-        stderr.write(f"infeasible: {exc}\n")
-        return EXIT_INFEASIBLE
-    except SolverLimitError as exc:
-        stderr.write(f"solver limit: {exc}\n")
-        return EXIT_LIMIT
-    except ExportError as exc:
-        stderr.write(f"error: {exc}\n")
-        return EXIT_INPUT
     except BraceGridError as exc:
-        stderr.write(f"error: {exc}\n")
-        return EXIT_INPUT
+        label, code = next((lab, c) for kind, lab, c in _EXIT_FOR if isinstance(exc, kind))
+        stderr.write(f"{label}: {exc}\n")
+        return code
     except KeyboardInterrupt:
         stderr.write("interrupted\n")
         return 130

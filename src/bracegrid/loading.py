@@ -280,6 +280,14 @@ def _read_member(col: _Collector, where: str, raw: object, rows: int | None, col
     return Member(row=row, col=column, kind=kind, diagonal=diagonal, existing=_STATUS[status])
 
 
+def _table_array(col: _Collector, where: str, table: Mapping[str, Any], key: str) -> list[Any]:
+    raw = table.get(key, [])
+    if isinstance(raw, list):
+        return raw
+    col.add(f"{where}.{key}", f"write each {key} as a [[frame.{key}]] table")
+    return []
+
+
 def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lines) -> Frame | None:
     where0 = f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}"
     table = col.table(where0, raw)
@@ -317,11 +325,7 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     redundancy = col.number(f"{where}.redundancy", table.get("redundancy", 0), integer=True)
     frame_box = (sum(widths), sum(heights)) if widths and heights else None
     openings: list[Opening] = []
-    raw_openings = table.get("opening", [])
-    if not isinstance(raw_openings, list):
-        col.add(f"{where}.opening", "write openings as [[frame.opening]] tables")
-        raw_openings = []
-    for k, item in enumerate(raw_openings):
+    for k, item in enumerate(_table_array(col, where, table, "opening")):
         at = _Lines.at(lines.openings[index], k) if index < len(lines.openings) else ""
         got = _read_opening(col, f"{at}frame {name!r} opening #{k + 1}", item, unit, frame_box)
         if got is not None:
@@ -331,11 +335,7 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
         col.add(f"{where}.opening", f"two openings are named {dup!r}; give each a unique name")
     members: list[Member] = []
     member_where: list[str] = []
-    raw_members = table.get("member", [])
-    if not isinstance(raw_members, list):
-        col.add(f"{where}.member", "write members as [[frame.member]] tables")
-        raw_members = []
-    for k, item in enumerate(raw_members):
+    for k, item in enumerate(_table_array(col, where, table, "member")):
         at = _Lines.at(lines.members[index], k) if index < len(lines.members) else ""
         here = f"{at}frame {name!r} member #{k + 1}"
         member = _read_member(col, here, item, rows, cols)

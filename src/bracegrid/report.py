@@ -292,3 +292,91 @@ def progress_line(event: Any) -> str:
     best = "-" if event.cost is None else f"{event.cost:.2f}"
     gap = "-" if event.gap is None else f"{100 * event.gap:.2f}%"
     return f"{event.frame}: best {best}  bound {event.bound:.2f}  gap {gap}  {event.seconds:.1f} s  {event.stage}"
+
+
+def _compare_rows(comparison: Any) -> list[dict[str, Any]]:
+    rows = []
+    for fc in comparison.frames:
+        for s in fc.strategies:
+            rows.append(
+                {
+                    "frame": fc.frame.name,
+                    "key": s.key.value,
+                    "strategy": s.key.title,
+                    "status": s.status,
+                    "cost": s.cost,
+                    "saving": fc.saving(s.key),
+                    "stable": s.stable,
+                    "braces": s.braces,
+                    "ties": s.ties,
+                    "diagonal_length_m": round(s.length_mm / 1000.0, 3),
+                    "critical_members": s.critical,
+                    "redundancy": s.redundancy,
+                    "bound": s.bound,
+                    "gap": s.gap,
+                    "seconds": s.seconds,
+                    "note": s.note,
+                }
+            )
+    return rows
+
+
+def compare_dict(comparison: Any) -> dict[str, Any]:
+    """The JSON object of ``bracegrid compare``."""
+    frames: dict[str, list[dict[str, Any]]] = {}
+    for row in _compare_rows(comparison):
+        item = {k: v for k, v in row.items() if k not in {"frame", "strategy"}}
+        frames.setdefault(row["frame"], []).append(item)
+    return {
+        "project": comparison.project.name,
+        "frames": [{"name": name, "strategies": items} for name, items in frames.items()],
+        "caution": CAUTION,
+    }
+
+
+def render_compare_csv(comparison: Any) -> str:
+    """The comparison table as CSV (one row per frame and strategy)."""
+    import csv
+
+    rows = _compare_rows(comparison)
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=list(rows[0]) if rows else ["frame"], lineterminator="\n")
+    writer.writeheader()
+    for row in rows:
+        writer.writerow({k: "" if v is None else v for k, v in row.items()})
+    return buffer.getvalue()
+
+
+def render_compare(comparison: Any) -> str:
+    """Human-readable comparison tables, one per frame."""
+    lines = []
+    for fc in comparison.frames:
+        table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
+        for head in ("strategy", "status", "braces", "ties", "length m", "cost", "saving", "stable",
+                     "critical", "survives", "gap", "time s"):  # fmt: skip
+            left = head in {"strategy", "status"}
+            table.add_column(head, justify="left" if left else "right", no_wrap=left)
+        for s in fc.strategies:
+            saving = fc.saving(s.key)
+            table.add_row(
+                s.key.value,
+                s.status,
+                str(s.braces),
+                str(s.ties),
+                f"{s.length_mm / 1000:.2f}",
+                "-" if s.cost is None else f"{s.cost:.2f}",
+                "-" if saving is None else f"{saving:.2f}",
+                "yes" if s.stable else "NO",
+                str(s.critical),
+                "-" if s.redundancy < 0 else f"{s.redundancy}",
+                "-" if s.gap is None else f"{100 * s.gap:.2f}%",
+                f"{s.seconds:.2f}",
+            )
+        lines.append(render_table(table, width=130))
+        for s in fc.strategies:
+            if s.note:
+                lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
+        lines.append("")
+    lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
+    lines.append(f"Caution: {CAUTION}")
+    return "\n".join(lines) + "\n"

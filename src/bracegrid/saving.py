@@ -79,6 +79,12 @@ def render_project(project: Project) -> str:
     return tomli_w.dumps(doc)
 
 
+def _umask() -> int:
+    current = os.umask(0)
+    os.umask(current)
+    return current
+
+
 def write_atomic(path: str | Path, write: Callable[[IO[bytes]], None]) -> Path:
     """Write a file through a temporary file in the same folder, then rename.
 
@@ -102,6 +108,7 @@ def write_atomic(path: str | Path, write: Callable[[IO[bytes]], None]) -> Path:
         fd, tmp_name = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".part", dir=dest.parent)
         with os.fdopen(fd, "wb") as handle:
             write(handle)
+        os.chmod(tmp_name, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
         os.replace(tmp_name, dest)
         tmp_name = ""
     except OSError as exc:

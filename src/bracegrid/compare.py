@@ -1,0 +1,273 @@
+"""Cost alternative bracing strategies for a frame side by side.
+
+Five strategies per frame, each re-verified by the stability check:
+
+1. ``braces-only``: rigid braces only (the optimizer, allow = brace);
+2. ``ties-only``: tension-only ties only;
+3. ``mixed``: the optimizer's free choice of braces and ties;
+4. ``mixed-redundant``: mixed, and stable after the loss of any one member
+   (or of the frame's own ``redundancy`` if that is higher);
+5. ``baseline``: the rule-of-thumb layout of :mod:`bracegrid.baseline`
+   (common practice, no source), repaired at least cost when it leaves a
+   mechanism, and reported as drawn plus the repair.
+
+Strategies override the frame's ``allow`` list: the point is to price the
+alternatives. Members in place (``status = "existing"``) are kept in every
+strategy and counted in every cost, so the costs compare like with like;
+members only proposed (``status = "proposed"``, e.g. from an earlier
+``optimize --write``) are dropped, since each strategy proposes its own. With
+``bare=True`` every member is dropped and each strategy starts from the bare
+frame.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from enum import Enum
+
+from bracegrid.baseline import rule_of_thumb_layout
+from bracegrid.errors import InfeasibleError
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project
+from bracegrid.optimize import SolveOptions, optimize_frame
+from bracegrid.rigidity import check_layout, redundancy_of
+
+
+class StrategyKey(Enum):
+    """The strategies compared, in table order."""
+
+    BRACES_ONLY = "braces-only"
+    TIES_ONLY = "ties-only"
+    MIXED = "mixed"
+    MIXED_REDUNDANT = "mixed-redundant"
+    BASELINE = "baseline"
+
+    @property
+    def title(self) -> str:
+        """Heading used in tables and reports."""
+        return _TITLES[self]
+
+
+_TITLES = {
+    StrategyKey.BRACES_ONLY: "Rigid braces only",
+    StrategyKey.TIES_ONLY: "Ties only",
+    StrategyKey.MIXED: "Mixed (optimized)",
+    StrategyKey.MIXED_REDUNDANT: "Mixed, survives loss of any one member",
+    StrategyKey.BASELINE: "Rule of thumb (as drawn, repaired)",
+}
+
+_BOTH = frozenset(MemberKind)
+
+
+@dataclass(frozen=True, slots=True)
+class StrategyResult:
+    """One strategy's layout for one frame.
+
+    Attributes:
+        key: Which strategy.
+        frame: The frame carrying the strategy's full layout (None if infeasible).
+        status: "optimal", "feasible" (time limit, see gap), "rule of thumb" or "infeasible".
+        cost: Whole-layout cost (money), None if infeasible.
+        bound: Proven lower bound on the cost, None where not applicable.
+        gap: Relative gap to the bound, None where not applicable.
+        seconds: Solve time.
+        braces: Rigid braces in the layout.
+        ties: Ties in the layout.
+        length_mm: Total diagonal length.
+        stable: Re-verified by the stability check.
+        critical: Members whose single loss leaves a mechanism.
+        redundancy: Members the layout can lose, any of them, and stay stable (-1: unstable).
+        note: Why infeasible, or what the repair added.
+    """
+
+    key: StrategyKey
+    frame: Frame | None
+    status: str
+    cost: float | None
+    bound: float | None
+    gap: float | None
+    seconds: float
+    braces: int
+    ties: int
+    length_mm: float
+    stable: bool
+    critical: int
+    redundancy: int
+    note: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class FrameComparison:
+    """Every strategy for one frame.
+
+    Attributes:
+        frame: The frame as given.
+        strategies: One result per strategy, in :class:`StrategyKey` order.
+    """
+
+    frame: Frame
+    strategies: tuple[StrategyResult, ...]
+
+    def result(self, key: StrategyKey) -> StrategyResult:
+        """The result of one strategy."""
+        return next(s for s in self.strategies if s.key is key)
+
+    def saving(self, key: StrategyKey) -> float | None:
+        """Money saved by a strategy against the baseline (None if either is infeasible)."""
+        base, got = self.result(StrategyKey.BASELINE).cost, self.result(key).cost
+        return None if base is None or got is None else round(base - got, 2)
+
+
+@dataclass(frozen=True, slots=True)
+class Comparison:
+    """Every frame's comparison.
+
+    Attributes:
+        project: The project as given.
+        frames: One comparison per frame compared.
+    """
+
+    project: Project
+    frames: tuple[FrameComparison, ...]
+
+
+def layout_cost(frame: Frame, costs: CostCatalogue, members: Sequence[Member]) -> float:
+    """Cost of every member in a layout, rounded to cents."""
+    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)
+
+
+def _summary(
+    key: StrategyKey,
+    frame: Frame,
+    costs: CostCatalogue,
+    members: tuple[Member, ...],
+    *,
+    status: str,
+    seconds: float,
+    cost: float | None = None,
+    bound: float | None = None,
+    gap: float | None = None,
+    note: str = "",
+) -> StrategyResult:
+    verdict = check_layout(frame, members)
+    braces = sum(1 for m in members if m.kind is MemberKind.BRACE)
+    return StrategyResult(
+        key=key,
+        frame=dataclasses.replace(frame, members=members),
+        status=status,
+        cost=layout_cost(frame, costs, members) if cost is None else cost,
+        bound=bound,
+        gap=gap,
+        seconds=round(seconds, 3),
+        braces=braces,
+        ties=len(members) - braces,
+        length_mm=round(sum(frame.diagonal_length_mm(m.row, m.col) for m in members), 1),
+        stable=verdict.stable,
+        critical=len(verdict.critical_members),
+        redundancy=redundancy_of(frame, members, at_most=3),
+        note=note,
+    )
+
+
+def _infeasible(key: StrategyKey, seconds: float, reason: str) -> StrategyResult:
+    return StrategyResult(
+        key=key, frame=None, status="infeasible", cost=None, bound=None, gap=None, seconds=round(seconds, 3),
+        braces=0, ties=0, length_mm=0.0, stable=False, critical=0, redundancy=-1, note=reason,
+    )  # fmt: skip
+
+
+def _optimized(key: StrategyKey, frame: Frame, costs: CostCatalogue, options: SolveOptions) -> StrategyResult:
+    allow = {
+        StrategyKey.BRACES_ONLY: frozenset({MemberKind.BRACE}),
+        StrategyKey.TIES_ONLY: frozenset({MemberKind.TIE}),
+    }.get(key, _BOTH)
+    k = max(1, frame.redundancy) if key is StrategyKey.MIXED_REDUNDANT else 0
+    t0 = time.perf_counter()
+    try:
+        sol = optimize_frame(frame, costs, options=dataclasses.replace(options, allow=allow, redundancy=k))
+    except InfeasibleError as exc:
+        return _infeasible(key, time.perf_counter() - t0, "; ".join(exc.reasons))
+    return _summary(
+        key, frame, costs, sol.members, status=sol.status.value, seconds=sol.seconds,
+        cost=sol.cost, bound=sol.bound, gap=sol.gap,
+    )  # fmt: skip
+
+
+def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> StrategyResult:
+    t0 = time.perf_counter()
+    drawn = rule_of_thumb_layout(frame)
+    added = len(drawn) - len(frame.members)
+    if check_layout(frame, drawn).stable:
+        note = f"as drawn: {added} members added by the rule, stable without repair"
+        return _summary(StrategyKey.BASELINE, frame, costs, drawn, status="rule of thumb",
+                        seconds=time.perf_counter() - t0, note=note)  # fmt: skip
+    as_drawn = layout_cost(frame, costs, drawn)
+    try:
+        sol = optimize_frame(
+            dataclasses.replace(frame, members=drawn),
+            costs,
+            options=dataclasses.replace(options, allow=_BOTH, redundancy=0),
+        )
+    except InfeasibleError as exc:
+        return _infeasible(StrategyKey.BASELINE, time.perf_counter() - t0, "; ".join(exc.reasons))
+    repair = len(sol.members) - len(drawn)
+    note = (
+        f"as drawn: {added} members by the rule, costing {as_drawn:.2f}, left a mechanism; "
+        f"repair added {repair} members costing {sol.cost - as_drawn:.2f}"
+    )
+    return _summary(StrategyKey.BASELINE, frame, costs, sol.members, status="rule of thumb",
+                    seconds=time.perf_counter() - t0, note=note)  # fmt: skip
+
+
+def compare_frame(
+    frame: Frame,
+    costs: CostCatalogue,
+    *,
+    options: SolveOptions | None = None,
+    bare: bool = False,
+    on_progress: Callable[[str, StrategyKey], None] | None = None,
+) -> FrameComparison:
+    """Solve one frame under every strategy.
+
+    Args:
+        frame: The frame; members in place are kept in every strategy,
+            proposed ones dropped.
+        costs: Prices.
+        options: Solver options (default :class:`SolveOptions`); the time limit applies to each strategy.
+        bare: Drop every member and start each strategy from the bare frame.
+        on_progress: Called with (frame name, strategy) as each strategy starts.
+
+    Returns:
+        The comparison, every layout re-verified.
+    """
+    options = options or SolveOptions()
+    frame = dataclasses.replace(frame, members=() if bare else tuple(m for m in frame.members if m.existing))
+    results = []
+    for key in StrategyKey:
+        if on_progress is not None:
+            on_progress(frame.name, key)
+        if key is StrategyKey.BASELINE:
+            results.append(_baseline(frame, costs, options))
+        else:
+            results.append(_optimized(key, frame, costs, options))
+    return FrameComparison(frame=frame, strategies=tuple(results))
+
+
+def compare_project(
+    project: Project,
+    *,
+    options: SolveOptions | None = None,
+    frames: Sequence[Frame] | None = None,
+    bare: bool = False,
+    on_progress: Callable[[str, StrategyKey], None] | None = None,
+) -> Comparison:
+    """Compare strategies for every frame (or the frames given); see :func:`compare_frame`."""
+    chosen = project.frames if frames is None else tuple(frames)
+    return Comparison(
+        project=project,
+        frames=tuple(
+            compare_frame(f, project.costs, options=options, bare=bare, on_progress=on_progress) for f in chosen
+        ),
+    )

@@ -1,0 +1,48 @@
+"""Previews: the PNG renders non-empty at the expected pixel size; SVG and PDF are well formed.
+
+Reference for the size: ISO 216 A3 is 420 x 297 mm; at 150 dpi that is
+420 / 25.4 * 150 = 2480.3 -> 2480 by 297 / 25.4 * 150 = 1753.9 -> 1754 pixels
+(matplotlib may floor the height to 1753).
+"""
+
+from __future__ import annotations
+
+import io
+from datetime import date
+
+import numpy as np
+import pytest
+from matplotlib.image import imread
+
+from bracegrid.drawing import DrawnSheet, build_drawing
+from bracegrid.loading import load_project
+from bracegrid.preview import PreviewFormat, preview_pixels, render_preview
+from tests.drawing_cases import ORCHARD
+
+
+@pytest.fixture(scope="module")
+def sheet() -> DrawnSheet:
+    return build_drawing(load_project(ORCHARD), when=date(2026, 12, 1))
+
+
+def test_png_size_and_ink(sheet: DrawnSheet) -> None:
+    assert sheet.plan.sheet == "A3"
+    data = render_preview(sheet, PreviewFormat.PNG, dpi=150)
+    assert data.startswith(b"\x89PNG\r\n\x1a\n")
+    image = imread(io.BytesIO(data), format="png")
+    height, width = image.shape[:2]
+    assert width == 2480
+    assert height in (1753, 1754)
+    assert preview_pixels(sheet, dpi=150)[0] == width
+    rgb = image[..., :3]
+    ink = np.mean(np.any(rgb < 0.5, axis=-1))  # share of dark pixels
+    assert 0.005 < ink < 0.5, ink  # lines and text drawn, not a black page
+
+
+def test_svg_and_pdf_are_written(sheet: DrawnSheet) -> None:
+    svg = render_preview(sheet, PreviewFormat.SVG)
+    # 420 mm = 420 / 25.4 * 72 = 1190.55 pt (the sheet prints at true size)
+    assert b'width="1190.55' in svg[:2000]
+    assert b'height="841.88' in svg[:2000]
+    pdf = render_preview(sheet, PreviewFormat.PDF)
+    assert pdf.startswith(b"%PDF-")
