@@ -305,11 +305,16 @@ def _solve_cp(
 ) -> tuple[Additions, int, bool, str]:
     from bracegrid import cutmodel, shortcuts, warmstart
 
+    start_time = time.monotonic()
     improve: Callable[[Additions], Additions | None]
     if k == 0:
         improve = lambda a: warmstart.constructive(table, a)  # noqa: E731
         tries = 12 if table.rows * table.cols <= 2500 else 2
-        starts = [warmstart.constructive(table), warmstart.pattern_starts(table, tries=tries, seed=options.seed)]
+        budget = start_time + 0.1 * max(0.0, deadline - start_time)
+        starts = [
+            warmstart.constructive(table),
+            warmstart.pattern_starts(table, tries=tries, seed=options.seed, deadline=budget),
+        ]
         if MemberKind.BRACE in allow and shortcuts.existing_is_symmetric(table):
             tree = shortcuts.spanning_tree_braces(table)
             if tree is not None:

@@ -165,12 +165,20 @@ def _fit(table: BayTable, add: Additions) -> Additions:
     return Additions(braces.astype(np.int64), rising.astype(np.int64), falling.astype(np.int64))
 
 
-def pattern_starts(table: BayTable, *, tries: int = 12, seed: int = 0) -> Additions | None:
+def pattern_starts(
+    table: BayTable, *, tries: int = 12, seed: int = 0, deadline: float | None = None
+) -> Additions | None:
     """Closed-form patterns laid on the frame under row/column shuffles, then repaired and pruned.
 
     On near-uniform frames (a grid with an opening) the complete-frame
     optimum is usually a few repairs away from the true one, which the cut
     model then only has to prove. Deterministic for a given seed.
+
+    Args:
+        table: The frame's table.
+        tries: Row/column orders to try (identity, cheapest first, then seeded shuffles).
+        seed: Seed of the shuffles.
+        deadline: ``time.monotonic()`` after which no further order is tried.
 
     Returns:
         The cheapest stable layout found, or None.
@@ -189,7 +197,11 @@ def pattern_starts(table: BayTable, *, tries: int = 12, seed: int = 0) -> Additi
     best_cost = 0
     row_order = np.argsort(table.tie_cost.mean(axis=1), kind="stable")
     col_order = np.argsort(table.tie_cost.mean(axis=0), kind="stable")
+    import time
+
     for attempt in range(tries):
+        if attempt > 0 and deadline is not None and time.monotonic() > deadline:
+            break
         if attempt == 0:
             rows, cols = np.arange(table.rows), np.arange(table.cols)
         elif attempt == 1:
