@@ -321,7 +321,13 @@ def _solve_cp(
                 starts.append(warmstart.prune(table, tree.additions))
     else:
         improve = lambda a: warmstart.constructive_redundant(table, a, k, deadline=deadline)  # noqa: E731
-        starts = [warmstart.constructive_redundant(table, None, k, deadline=deadline)]
+        budget = start_time + 0.1 * max(0.0, deadline - start_time)
+        starts = [
+            warmstart.constructive_redundant(table, None, k, deadline=deadline),
+            warmstart.redundant_pattern_starts(
+                table, k, tries=3 if table.rows * table.cols <= 900 else 1, seed=options.seed, deadline=budget
+            ),
+        ]
     found = [s for s in starts if s is not None]
     incumbent = min(found, key=lambda a: a.cost(table)) if found else None
     report("warm start", None if incumbent is None else incumbent.cost(table), 0)

@@ -321,3 +321,65 @@ def constructive_redundant(
         if not _meets(table, cur, k):
             arrays[name][i, j] += 1
     return cur
+
+
+def _fit_many(table: BayTable, add: Additions) -> Additions:
+    """Clip summed patterns to what each bay can take (ties first, braces on what is left)."""
+    slots = table.free_slots
+    rising = np.where(table.rising_tie_ok, np.minimum(add.rising, 1), 0)
+    falling = np.where(table.falling_tie_ok, np.minimum(add.falling, 1), 0)
+    room = np.maximum(slots - rising - falling, 0)
+    braces = np.where(table.brace_ok, np.minimum(add.braces, np.minimum(room, 2)), 0)
+    return Additions(braces.astype(np.int64), rising.astype(np.int64), falling.astype(np.int64))
+
+
+def redundant_pattern_starts(
+    table: BayTable, k: int, *, tries: int = 3, seed: int = 0, deadline: float | None = None
+) -> Additions | None:
+    """Closed walks through every long-side node, each step a brace or an X of ties, k of them overlaid.
+
+    A closed walk using each bay once is 2-edge-connected, so with a brace
+    (both arcs) or an X of ties (one arc each way) in every bay it survives
+    the loss of any one member; overlaying k such walks under different
+    row/column shuffles gives k + 1 arcs across most cuts. The greedy repair
+    (:func:`constructive_redundant`) closes the rest, then prunes.
+
+    Returns:
+        The cheapest layout found whose every cut has k + 1 member arcs, or None.
+    """
+    import time
+
+    from bracegrid.shortcuts import pattern
+
+    rng = np.random.default_rng(seed)
+    base = pattern(table.rows, table.cols, "cycle")
+    walk = (base.rising + base.falling) > 0
+    styles = []
+    if table.brace_ok.any():
+        styles.append("brace")
+    if table.tie_ok:
+        styles.append("x")
+    best: Additions | None = None
+    best_cost = 0
+    for attempt in range(tries):
+        if attempt > 0 and deadline is not None and time.monotonic() > deadline:
+            break
+        for style in styles:
+            total = Additions.empty(table.rows, table.cols)
+            for layer in range(max(1, k)):
+                if attempt == 0:
+                    rows = np.roll(np.arange(table.rows), layer)
+                    cols = np.roll(np.arange(table.cols), layer)
+                else:
+                    rows, cols = rng.permutation(table.rows), rng.permutation(table.cols)
+                placed = np.zeros_like(walk)
+                placed[np.ix_(rows, cols)] = walk
+                if style == "brace":
+                    total.braces[placed] += 1
+                else:
+                    total.rising[placed] += 1
+                    total.falling[placed] += 1
+            got = constructive_redundant(table, _fit_many(table, total), k, deadline=deadline)
+            if got is not None and (best is None or got.cost(table) < best_cost):
+                best, best_cost = got, got.cost(table)
+    return best
