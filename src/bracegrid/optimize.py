@@ -294,6 +294,13 @@ def _solve(
     return _solve_cp(frame, table, allow, k, options, deadline, report)
 
 
+def _uniform(table: BayTable) -> bool:
+    """All open bays price a brace alike and a tie alike (the symmetric regime)."""
+    open_bays = table.free_slots > 0
+    braces, ties = table.brace_cost[open_bays], table.tie_cost[open_bays]
+    return bool(braces.size and (braces == braces[0]).all() and (ties == ties[0]).all())
+
+
 def _solve_cp(
     frame: Frame,
     table: BayTable,
@@ -322,11 +329,11 @@ def _solve_cp(
     else:
         improve = lambda a: warmstart.constructive_redundant(table, a, k, deadline=deadline)  # noqa: E731
         budget = start_time + 0.1 * max(0.0, deadline - start_time)
+        # Walk starts pay off on small or uniform frames; on large random ones they only eat time.
+        walks = 3 if table.rows * table.cols <= 600 or _uniform(table) else 0
         starts = [
             warmstart.constructive_redundant(table, None, k, deadline=deadline),
-            warmstart.redundant_pattern_starts(
-                table, k, tries=3 if table.rows * table.cols <= 900 else 1, seed=options.seed, deadline=budget
-            ),
+            warmstart.redundant_pattern_starts(table, k, tries=walks, seed=options.seed, deadline=budget),
         ]
     found = [s for s in starts if s is not None]
     incumbent = min(found, key=lambda a: a.cost(table)) if found else None
