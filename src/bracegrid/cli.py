@@ -71,6 +71,12 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
         _emit(out, check_dict(verdicts))
     else:
         out.write(render_check(project.name, verdicts))
+        if target is not None and not all(v.stable for v in verdicts):
+            refs = " ".join(args.without)
+            out.write(
+                f"Cheapest repair: bracegrid optimize {args.project} --frame {target.name!r} --without {refs} "
+                "[--keep-clear]\n"
+            )
     return EXIT_OK if all(v.stable for v in verdicts) else EXIT_UNSTABLE
 
 

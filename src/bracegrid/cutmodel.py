@@ -435,29 +435,41 @@ def solve_with_cuts(
     proven = best_cost is not None and best_cost <= bound
     if proven:
         bound = best_cost or 0
+    cutoff = None
+    started = time.monotonic()
+    # Window search costs seconds per round: on frames where rounds are quick it only slows
+    # the proof, so it waits until 30% of the budget is gone (large frames start at once).
+    lns_from = started if table.rows * table.cols > 600 else started + 0.3 * max(0.0, deadline - started)
     while not proven:
         remaining = deadline - time.monotonic()
         if remaining <= 0.01:
             break
         if best is not None:
             cm.hint(best)
+        if best_cost is not None and best_cost != cutoff and not isinstance(cm.objective, int):
+            # Only strictly cheaper answers are of use: the relaxation then either finds one
+            # (a new layout, or new cuts) or proves there is none (the incumbent is optimal).
+            cm.model.add(cm.objective <= best_cost - 1)
+            cutoff = best_cost
         solver = cp_model.CpSolver()
         p = solver.parameters
         configure(p, workers=workers, seed=seed, seconds=remaining)
+        p.relative_gap_limit = 1e-4
         collector: Any = _Collector(cm)
         status = solver.solve(cm.model, collector)
         iterations += 1
         if status == cp_model.INFEASIBLE:
-            if best is None:
-                break
-            proven = True  # the hint satisfied every cut, so this cannot happen; be safe
-            bound = best_cost or 0
+            if best is not None:
+                # Nothing cheaper than the incumbent satisfies even the relaxation.
+                proven = True
+                bound = best_cost or 0
+                if on_step is not None:
+                    on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
             break
         if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
             break
+        # Valid for the full problem: any layout cheaper than the incumbent is in this relaxation.
         bound = max(bound, int(np.ceil(solver.best_objective_bound - 1e-6)))
-        if status == cp_model.OPTIMAL:
-            bound = max(bound, round(solver.objective_value))
         relaxed = cm.read(solver)
         cuts = violated_cuts(table, relaxed, k)
         candidate = relaxed if not cuts else improve(relaxed)
@@ -473,7 +485,7 @@ def solve_with_cuts(
             and best is not None
             and lns_rounds > 0
             and min(table.rows, table.cols) > 4
-            and (iterations > 1 or table.rows * table.cols > 400)
+            and time.monotonic() >= lns_from
         ):
             better = improve_by_windows(
                 table, best, k=k, rounds=lns_rounds, seed=seed + iterations, deadline=deadline,
@@ -485,7 +497,7 @@ def solve_with_cuts(
                     proven, bound = True, best_cost
         if on_step is not None:
             on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
-        if proven or status != cp_model.OPTIMAL:
+        if proven or status != cp_model.OPTIMAL or time.monotonic() >= deadline:
             break
         for s in cuts:
             cm.add_cut(s)
@@ -555,7 +567,7 @@ def improve_by_windows(
         start = Additions(best.braces * inside, best.rising * inside, best.falling * inside)
 
         def fix(a: Additions, sub: BayTable = sub) -> Additions | None:
-            return constructive(sub, a) if k == 0 else constructive_redundant(sub, a, k)
+            return constructive(sub, a) if k == 0 else constructive_redundant(sub, a, k, deadline=deadline)
 
         got = solve_with_cuts(
             sub, k=k, row_sizes=row_sizes, col_sizes=col_sizes, incumbent=start, improve=fix,

@@ -305,18 +305,29 @@ def _solve_cp(
 ) -> tuple[Additions, int, bool, str]:
     from bracegrid import cutmodel, shortcuts, warmstart
 
+    start_time = time.monotonic()
     improve: Callable[[Additions], Additions | None]
     if k == 0:
         improve = lambda a: warmstart.constructive(table, a)  # noqa: E731
         tries = 12 if table.rows * table.cols <= 2500 else 2
-        starts = [warmstart.constructive(table), warmstart.pattern_starts(table, tries=tries, seed=options.seed)]
+        budget = start_time + 0.1 * max(0.0, deadline - start_time)
+        starts = [
+            warmstart.constructive(table),
+            warmstart.pattern_starts(table, tries=tries, seed=options.seed, deadline=budget),
+        ]
         if MemberKind.BRACE in allow and shortcuts.existing_is_symmetric(table):
             tree = shortcuts.spanning_tree_braces(table)
             if tree is not None:
                 starts.append(warmstart.prune(table, tree.additions))
     else:
-        improve = lambda a: warmstart.constructive_redundant(table, a, k)  # noqa: E731
-        starts = [warmstart.constructive_redundant(table, None, k)]
+        improve = lambda a: warmstart.constructive_redundant(table, a, k, deadline=deadline)  # noqa: E731
+        budget = start_time + 0.1 * max(0.0, deadline - start_time)
+        starts = [
+            warmstart.constructive_redundant(table, None, k, deadline=deadline),
+            warmstart.redundant_pattern_starts(
+                table, k, tries=3 if table.rows * table.cols <= 900 else 1, seed=options.seed, deadline=budget
+            ),
+        ]
     found = [s for s in starts if s is not None]
     incumbent = min(found, key=lambda a: a.cost(table)) if found else None
     report("warm start", None if incumbent is None else incumbent.cost(table), 0)

@@ -165,12 +165,20 @@ def _fit(table: BayTable, add: Additions) -> Additions:
     return Additions(braces.astype(np.int64), rising.astype(np.int64), falling.astype(np.int64))
 
 
-def pattern_starts(table: BayTable, *, tries: int = 12, seed: int = 0) -> Additions | None:
+def pattern_starts(
+    table: BayTable, *, tries: int = 12, seed: int = 0, deadline: float | None = None
+) -> Additions | None:
     """Closed-form patterns laid on the frame under row/column shuffles, then repaired and pruned.
 
     On near-uniform frames (a grid with an opening) the complete-frame
     optimum is usually a few repairs away from the true one, which the cut
     model then only has to prove. Deterministic for a given seed.
+
+    Args:
+        table: The frame's table.
+        tries: Row/column orders to try (identity, cheapest first, then seeded shuffles).
+        seed: Seed of the shuffles.
+        deadline: ``time.monotonic()`` after which no further order is tried.
 
     Returns:
         The cheapest stable layout found, or None.
@@ -189,7 +197,11 @@ def pattern_starts(table: BayTable, *, tries: int = 12, seed: int = 0) -> Additi
     best_cost = 0
     row_order = np.argsort(table.tie_cost.mean(axis=1), kind="stable")
     col_order = np.argsort(table.tie_cost.mean(axis=0), kind="stable")
+    import time
+
     for attempt in range(tries):
+        if attempt > 0 and deadline is not None and time.monotonic() > deadline:
+            break
         if attempt == 0:
             rows, cols = np.arange(table.rows), np.arange(table.cols)
         elif attempt == 1:
@@ -219,16 +231,53 @@ def constructive(table: BayTable, start: Additions | None = None) -> Additions |
     return None if fixed is None else prune(table, fixed)
 
 
-def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> Additions | None:
+def _meets(table: BayTable, add: Additions, k: int) -> bool:
+    """Every cut has k + 1 member arcs (maximum flows from node 0 and back, stopping at the first short one)."""
+    from scipy.sparse.csgraph import maximum_flow
+
+    from bracegrid.cutmodel import arc_lists
+
+    n = table.rows + table.cols
+    src, dst, cap = arc_lists(table, add)
+    g = csr_matrix((cap.astype(np.int32), (src, dst)), shape=(n, n))
+    gt = g.T.tocsr()
+    for v in range(1, n):
+        for graph in (g, gt):
+            if maximum_flow(graph, 0, v).flow_value < k + 1:
+                return False
+    return True
+
+
+def _cut_short(table: BayTable, add: Additions, s: frozenset[int], k: int) -> bool:
+    """Whether node set S still has fewer than k + 1 member arcs leaving it."""
+    r_count = table.rows
+    in_row = np.zeros(r_count, dtype=bool)
+    in_col = np.zeros(table.cols, dtype=bool)
+    for v in s:
+        if v < r_count:
+            in_row[v] = True
+        else:
+            in_col[v - r_count] = True
+    leaving = add.up(table)[in_row[:, None] & ~in_col[None, :]].sum()
+    leaving += add.down(table)[~in_row[:, None] & in_col[None, :]].sum()
+    return bool(leaving < k + 1)
+
+
+def constructive_redundant(
+    table: BayTable, start: Additions | None, k: int, *, deadline: float | None = None
+) -> Additions | None:
     """Greedy layout of a free frame whose every cut has k + 1 member arcs, then pruned.
 
-    Repeatedly takes a violated cut (a minimum cut with too few arcs) and adds
-    the cheapest member giving an arc across it; then drops new members,
-    dearest first, while every cut stays satisfied.
+    Repeatedly takes the violated cuts (minimum cuts with too few arcs) and,
+    for each still short, adds the cheapest member giving an arc across it;
+    then drops new members, dearest first, while every cut stays satisfied
+    (pruning stops at the deadline; the layout is valid either way).
 
     Returns:
         The additions, or None if the allowed members cannot satisfy some cut.
     """
+    import time
+
     from bracegrid.cutmodel import violated_cuts
 
     r_count = table.rows
@@ -239,23 +288,25 @@ def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> 
         cuts = violated_cuts(table, cur, k)
         if not cuts:
             break
-        s = cuts[0]
-        in_row = np.array([i in s for i in range(r_count)])
-        in_col = np.array([r_count + j in s for j in range(table.cols)])
-        up, down, up_kind, down_kind = _arc_prices(table, cur)
-        cu = np.where(in_row[:, None] & ~in_col[None, :], up, _BIG)
-        cd = np.where(~in_row[:, None] & in_col[None, :], down, _BIG)
-        iu, idn = int(cu.argmin()), int(cd.argmin())
-        if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
-            return None
-        is_up = cu.flat[iu] <= cd.flat[idn]
-        i, j = divmod(iu if is_up else idn, table.cols)
-        if (up_kind if is_up else down_kind)[i, j] == 1:
-            cur.braces[i, j] += 1
-        elif is_up:
-            cur.rising[i, j] += 1
-        else:
-            cur.falling[i, j] += 1
+        for s in cuts:
+            if not _cut_short(table, cur, s, k):
+                continue
+            in_row = np.array([i in s for i in range(r_count)])
+            in_col = np.array([r_count + j in s for j in range(table.cols)])
+            up, down, up_kind, down_kind = _arc_prices(table, cur)
+            cu = np.where(in_row[:, None] & ~in_col[None, :], up, _BIG)
+            cd = np.where(~in_row[:, None] & in_col[None, :], down, _BIG)
+            iu, idn = int(cu.argmin()), int(cd.argmin())
+            if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
+                return None
+            is_up = cu.flat[iu] <= cd.flat[idn]
+            i, j = divmod(iu if is_up else idn, table.cols)
+            if (up_kind if is_up else down_kind)[i, j] == 1:
+                cur.braces[i, j] += 1
+            elif is_up:
+                cur.rising[i, j] += 1
+            else:
+                cur.falling[i, j] += 1
     items = []
     for name, arr, price in (("b", cur.braces, table.brace_cost), ("r", cur.rising, table.tie_cost),
                              ("f", cur.falling, table.tie_cost)):  # fmt: skip
@@ -264,7 +315,71 @@ def constructive_redundant(table: BayTable, start: Additions | None, k: int) -> 
     items.sort()
     arrays = {"b": cur.braces, "r": cur.rising, "f": cur.falling}
     for _, i, j, name in items:
+        if deadline is not None and time.monotonic() > deadline:
+            break
         arrays[name][i, j] -= 1
-        if violated_cuts(table, cur, k):
+        if not _meets(table, cur, k):
             arrays[name][i, j] += 1
     return cur
+
+
+def _fit_many(table: BayTable, add: Additions) -> Additions:
+    """Clip summed patterns to what each bay can take (ties first, braces on what is left)."""
+    slots = table.free_slots
+    rising = np.where(table.rising_tie_ok, np.minimum(add.rising, 1), 0)
+    falling = np.where(table.falling_tie_ok, np.minimum(add.falling, 1), 0)
+    room = np.maximum(slots - rising - falling, 0)
+    braces = np.where(table.brace_ok, np.minimum(add.braces, np.minimum(room, 2)), 0)
+    return Additions(braces.astype(np.int64), rising.astype(np.int64), falling.astype(np.int64))
+
+
+def redundant_pattern_starts(
+    table: BayTable, k: int, *, tries: int = 3, seed: int = 0, deadline: float | None = None
+) -> Additions | None:
+    """Closed walks through every long-side node, each step a brace or an X of ties, k of them overlaid.
+
+    A closed walk using each bay once is 2-edge-connected, so with a brace
+    (both arcs) or an X of ties (one arc each way) in every bay it survives
+    the loss of any one member; overlaying k such walks under different
+    row/column shuffles gives k + 1 arcs across most cuts. The greedy repair
+    (:func:`constructive_redundant`) closes the rest, then prunes.
+
+    Returns:
+        The cheapest layout found whose every cut has k + 1 member arcs, or None.
+    """
+    import time
+
+    from bracegrid.shortcuts import pattern
+
+    rng = np.random.default_rng(seed)
+    base = pattern(table.rows, table.cols, "cycle")
+    walk = (base.rising + base.falling) > 0
+    styles = []
+    if table.brace_ok.any():
+        styles.append("brace")
+    if table.tie_ok:
+        styles.append("x")
+    best: Additions | None = None
+    best_cost = 0
+    for attempt in range(tries):
+        if attempt > 0 and deadline is not None and time.monotonic() > deadline:
+            break
+        for style in styles:
+            total = Additions.empty(table.rows, table.cols)
+            for layer in range(max(1, k)):
+                if attempt == 0:
+                    rows = np.roll(np.arange(table.rows), layer)
+                    cols = np.roll(np.arange(table.cols), layer)
+                else:
+                    rows, cols = rng.permutation(table.rows), rng.permutation(table.cols)
+                placed = np.zeros_like(walk)
+                placed[np.ix_(rows, cols)] = walk
+                if style == "brace":
+                    total.braces[placed] += 1
+                else:
+                    total.rising[placed] += 1
+                    total.falling[placed] += 1
+            got = constructive_redundant(table, _fit_many(table, total), k, deadline=deadline)
+            if got is not None and (best is None or got.cost(table) < best_cost):
+                best, best_cost = got, got.cost(table)
+    return best
