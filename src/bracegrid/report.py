@@ -377,6 +377,14 @@ def render_compare(comparison: Any) -> str:
             if s.note:
                 lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
         lines.append("")
+    if len(comparison.frames) > 1:
+        parts = []
+        from bracegrid.compare import StrategyKey
+
+        for key in StrategyKey:
+            total = comparison.total(key)
+            parts.append(f"{key.value} {'-' if total is None else f'{total:.2f}'}")
+        lines.append("All frames: " + ", ".join(parts))
     lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
