@@ -69,9 +69,8 @@ def main() -> None:
             frame = Frame("bench", (2500,) * n, (2000,) * n, supports=supports)
             members = dense_layout(n, args.density, seed=n)
             s, mem, ok, crit = measure(frame, members)
-            print(
-                f"{f'dense {n}x{n} {supports.value}':<28}{n * n:>10}{len(members):>10}{s:>10.3f}{mem:>10.1f}{ok!s:>8}{crit:>10}"
-            )
+            case = f"dense {n}x{n} {supports.value}"
+            print(f"{case:<28}{n * n:>10}{len(members):>10}{s:>10.3f}{mem:>10.1f}{ok!s:>8}{crit:>10}")
         frame = Frame("bench", (2500,) * n, (2000,) * n)
         members = minimal_layout(n)
         s, mem, ok, crit = measure(frame, members)

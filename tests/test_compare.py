@@ -172,3 +172,15 @@ def test_report_renders_headless(tmp_path: Path) -> None:
         assert img.size == (1200, 2000)
         colours = img.convert("L").getextrema()
         assert colours[0] < 100 < colours[1]  # text on a light page, not a blank screen
+
+
+def test_totals_over_every_frame() -> None:
+    from bracegrid.compare import compare_project
+    from bracegrid.loading import load_project
+
+    project = load_project(Path(__file__).resolve().parents[1] / "projects" / "quayside-scaffold.toml")
+    comparison = compare_project(project, options=OPTIONS)
+    for key in StrategyKey:
+        assert comparison.total(key) == pytest.approx(sum(fc.result(key).cost for fc in comparison.frames))
+    # Pinned base, rows decouple: ties-only can never beat mixed.
+    assert comparison.total(StrategyKey.MIXED) <= comparison.total(StrategyKey.TIES_ONLY)

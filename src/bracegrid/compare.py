@@ -132,6 +132,11 @@ class Comparison:
     project: Project
     frames: tuple[FrameComparison, ...]
 
+    def total(self, key: StrategyKey) -> float | None:
+        """A strategy's cost summed over the frames (None if it is infeasible for any)."""
+        costs = [fc.result(key).cost for fc in self.frames]
+        return None if any(c is None for c in costs) else round(sum(c for c in costs if c is not None), 2)
+
 
 def layout_cost(frame: Frame, costs: CostCatalogue, members: Sequence[Member]) -> float:
     """Cost of every member in a layout, rounded to cents."""

@@ -62,8 +62,8 @@ def describe_part(part: LoosePart, anchor: str) -> str:
     """One loose part in plain words.
 
     Example:
-        >>> describe_part(LoosePart((3, 4), (), Racking.CLOCKWISE), "the pinned base")
-        'rows 3-4 can rack clockwise only (tops sway right) relative to the pinned base; a tie or brace must stop the other sense too'
+        >>> describe_part(LoosePart((3, 4), (), Racking.CLOCKWISE), "the pinned base").split(";")[0]
+        'rows 3-4 can rack clockwise only (tops sway right) relative to the pinned base'
     """
     who = _who(part.rows, part.columns)
     if part.racking is Racking.BOTH:
@@ -377,6 +377,14 @@ def render_compare(comparison: Any) -> str:
             if s.note:
                 lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
         lines.append("")
+    if len(comparison.frames) > 1:
+        parts = []
+        from bracegrid.compare import StrategyKey
+
+        for key in StrategyKey:
+            total = comparison.total(key)
+            parts.append(f"{key.value} {'-' if total is None else f'{total:.2f}'}")
+        lines.append("All frames: " + ", ".join(parts))
     lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"

@@ -12,7 +12,7 @@ from datetime import date
 
 from bracegrid._version import __version__
 from bracegrid.bom import FrameBom, build_bom
-from bracegrid.compare import Comparison, FrameComparison, StrategyResult
+from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult
 from bracegrid.drawing import build_drawing
 from bracegrid.model import Project
 from bracegrid.preview import PreviewFormat, render_preview
@@ -89,6 +89,17 @@ def _comparison_table(fc: FrameComparison) -> str:
     return f"<table>{head}{''.join(rows)}</table>"
 
 
+def _totals_table(comparison: Comparison) -> str:
+    base = comparison.total(StrategyKey.BASELINE)
+    rows = []
+    for key in StrategyKey:
+        total = comparison.total(key)
+        saving = None if base is None or total is None else round(base - total, 2)
+        rows.append(f"<tr><td class=l>{_e(key.title)}</td><td>{_money(total)}</td><td>{_money(saving)}</td></tr>")
+    head = "<tr><th class=l>strategy</th><th>cost, all frames</th><th>saving vs rule of thumb</th></tr>"
+    return f"<h2>All frames</h2><table>{head}{''.join(rows)}</table>"
+
+
 def _bom_table(fb: FrameBom) -> str:
     head = (
         "<tr><th class=l>kind</th><th class=l>status</th><th>count</th><th>cut length each</th>"
@@ -163,6 +174,8 @@ def render_html(comparison: Comparison, *, when: date | None = None, time_limit:
         f"{c.brace.per_metre:g}/m; tie: {c.tie.per_piece:g} + {c.tie.labour_per_piece:g} + {c.tie.per_metre:g}/m; "
         f"contingency {c.contingency_pct:g}%. Members in place count in every strategy.</p>"
     )
+    if len(comparison.frames) > 1:
+        parts.append(_totals_table(comparison))
     for fc in comparison.frames:
         parts.append(f"<h2>{_e(fc.frame.name)}: comparison</h2>{_comparison_table(fc)}")
     index = 0
