@@ -178,3 +178,11 @@ def test_cli_redundancy_json(small: Path) -> None:
     frame = json.loads(out)["frames"][0]
     assert frame["redundancy"] == 0
     assert frame["critical_members"]
+
+
+def test_redundancy_out_of_range_is_bad_input(small: Path) -> None:
+    from bracegrid.errors import InputError
+
+    with pytest.raises(InputError, match="redundancy 9"):
+        optimize_frame(Frame("f", (2500,), (2000,)), CostCatalogue(), options=dataclasses.replace(OPTS, redundancy=9))
+    assert run("optimize", str(small), "--redundancy", "9")[0] == 2

@@ -29,9 +29,12 @@ from enum import Enum
 import numpy as np
 
 from bracegrid.costing import Additions, BayTable, bay_table, money
-from bracegrid.errors import InfeasibleError, SolverLimitError
+from bracegrid.errors import InfeasibleError, InputError, SolverLimitError
 from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, Verdict
 from bracegrid.rigidity import check_layout
+
+#: Largest redundancy the optimizer accepts (the achieved value is measured up to this cap).
+MAX_REDUNDANCY = 8
 
 
 class SolveStatus(Enum):
@@ -219,6 +222,7 @@ def optimize_frame(
     Raises:
         InfeasibleError: No layout can make the frame stable (with reasons).
         SolverLimitError: No layout was found within the limit (should not happen).
+        InputError: Redundancy outside 0..MAX_REDUNDANCY.
 
     Example:
         >>> from bracegrid.model import Frame
@@ -231,6 +235,9 @@ def optimize_frame(
     deadline = start + max(0.0, options.time_limit)
     allow = frame.allow if options.allow is None else options.allow
     k = frame.redundancy if options.redundancy is None else options.redundancy
+    if not 0 <= k <= MAX_REDUNDANCY:
+        msg = f"frame {frame.name!r}: redundancy {k} is outside 0..{MAX_REDUNDANCY}; ask for fewer member losses"
+        raise InputError(msg)
     kept = tuple(frame.members)
     table = bay_table(frame, costs, kept, allow)
     reasons = _infeasible_reasons(frame, table, allow, k)
