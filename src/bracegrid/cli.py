@@ -373,4 +373,3 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
             "please report it with the project file.\n"
         )
         return EXIT_INTERNAL
-

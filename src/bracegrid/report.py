@@ -273,8 +273,7 @@ def render_optimize(project_name: str, solution: Any) -> str:
             lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")
         if s.verdict.critical_members:
             lines.append(
-                f"{s.frame.name}: critical (single loss makes it unstable): "
-                f"{len(s.verdict.critical_members)} member(s)"
+                f"{s.frame.name}: critical (single loss makes it unstable): {len(s.verdict.critical_members)} member(s)"
             )
     lines.append("")
     lines.append(f"Caution: {CAUTION}")

@@ -281,8 +281,10 @@ def constructive_redundant(
     from bracegrid.cutmodel import violated_cuts
 
     r_count = table.rows
-    cur = Additions.empty(table.rows, table.cols) if start is None else Additions(
-        start.braces.copy(), start.rising.copy(), start.falling.copy()
+    cur = (
+        Additions.empty(table.rows, table.cols)
+        if start is None
+        else Additions(start.braces.copy(), start.rising.copy(), start.falling.copy())
     )
     while True:
         cuts = violated_cuts(table, cur, k)

@@ -110,9 +110,7 @@ def _random_case(seed: int) -> tuple[Frame, CostCatalogue]:
     rows, cols = rng.choice(SIZES)
     widths = tuple(rng.choice([1000, 1500, 2000, 2500, 3000]) for _ in range(cols))
     heights = tuple(rng.choice([1000, 2000, 3000]) for _ in range(rows))
-    blocked = frozenset(
-        (i, j) for i in range(1, rows + 1) for j in range(1, cols + 1) if rng.random() < 0.15
-    )
+    blocked = frozenset((i, j) for i in range(1, rows + 1) for j in range(1, cols + 1) if rng.random() < 0.15)
     supports = rng.choice([Supports.FREE, Supports.FREE, Supports.BASE])
     allow = rng.choice([frozenset(MemberKind), frozenset(MemberKind), frozenset({MemberKind.TIE}),
                         frozenset({MemberKind.BRACE})])  # fmt: skip
