@@ -78,6 +78,22 @@ def describe_part(part: LoosePart, anchor: str) -> str:
     )
 
 
+def redundancy_words(k: int) -> str:
+    """A layout's redundancy in plain words.
+
+    Example:
+        >>> redundancy_words(1)
+        'survives the loss of any one member'
+        >>> redundancy_words(2)
+        'survives the loss of any 2 members'
+    """
+    if k < 0:
+        return "not stable"
+    if k == 0:
+        return "a single member loss can leave a mechanism"
+    return "survives the loss of any one member" if k == 1 else f"survives the loss of any {k} members"
+
+
 def member_dict(member: Member) -> dict[str, Any]:
     """A member as JSON."""
     return {"row": member.row, "col": member.col, "kind": member.kind.value, "diagonal": member.diagonal.value}
@@ -268,7 +284,7 @@ def render_optimize(project_name: str, solution: Any) -> str:
         new = [m for m in s.members if not m.existing]
         if s.verdict.removed:
             lines.append(f"{s.frame.name}: repaired without {_members_text(s.verdict.removed)}")
-        lines.append(f"{s.frame.name}: {s.method}; survives the loss of any {s.redundancy} member(s)")
+        lines.append(f"{s.frame.name}: {s.method}; {redundancy_words(s.redundancy)}")
         if new:
             lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")
         if s.verdict.critical_members:
