@@ -367,6 +367,8 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     except KeyboardInterrupt:
         stderr.write("interrupted\n")
         return 130
+    except BrokenPipeError:  # output piped into e.g. `head`, which stopped reading
+        return EXIT_OK
     except Exception as exc:
         stderr.write(
             f"internal error ({type(exc).__name__}: {exc}). This is a bracegrid bug; "
