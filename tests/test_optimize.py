@@ -220,3 +220,18 @@ def test_cost_never_above_greedy_baseline(case: tuple[Frame, CostCatalogue]) -> 
     assert sol.added_cost <= greedy + 0.01
     assert is_stable(frame, sol.members)
     assert physically_rigid(frame, sol.members)
+
+
+def test_reported_cost_matches_bill_of_materials_to_the_cent() -> None:
+    # Regression: 48 ties priced 60.8140591 each summed to 2919.07, while per-member rounding
+    # to 1/10000 units gave 2919.08 in the optimizer's report. Both now use exact prices.
+    # By hand: tie = 22 + 10 + 4.5 x hypot(5, 4) = 60.814059; x 48 (4 max(12, 8), N-1) = 2919.07.
+    from pathlib import Path
+
+    from bracegrid.bom import build_bom
+    from bracegrid.loading import load_project
+
+    project = load_project(Path(__file__).resolve().parents[1] / "projects" / "mill-lane-roof.toml")
+    sol = optimize_project(project, options=SolveOptions(time_limit=30, workers=1, redundancy=1))
+    bom = build_bom(dataclasses.replace(project, frames=tuple(f.frame for f in sol.frames)))
+    assert round(bom.totals.cost, 2) == sol.cost == 2919.07

@@ -29,6 +29,7 @@ from dataclasses import dataclass
 from enum import Enum
 
 from bracegrid.baseline import rule_of_thumb_layout
+from bracegrid.costing import layout_cost
 from bracegrid.errors import InfeasibleError
 from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project
 from bracegrid.optimize import SolveOptions, optimize_frame
@@ -136,11 +137,6 @@ class Comparison:
         """A strategy's cost summed over the frames (None if it is infeasible for any)."""
         costs = [fc.result(key).cost for fc in self.frames]
         return None if any(c is None for c in costs) else round(sum(c for c in costs if c is not None), 2)
-
-
-def layout_cost(frame: Frame, costs: CostCatalogue, members: Sequence[Member]) -> float:
-    """Cost of every member in a layout, rounded to cents."""
-    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)
 
 
 def _summary(

@@ -10,6 +10,7 @@ with two decimals.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
 
 import numpy as np
@@ -43,6 +44,18 @@ def money(units: int | float) -> float:
         65.0
     """
     return round(units / SCALE, 2)
+
+
+def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -> float:
+    """Price of every member of a layout, from the exact member prices, rounded to cents.
+
+    Example:
+        >>> from bracegrid.model import Diagonal, Member
+        >>> f = Frame("f", (3000,), (4000,))
+        >>> layout_cost(f, CostCatalogue(), [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
+        65.0
+    """
+    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)
 
 
 @dataclass(frozen=True, slots=True)

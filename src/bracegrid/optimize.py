@@ -28,7 +28,7 @@ from enum import Enum
 
 import numpy as np
 
-from bracegrid.costing import Additions, BayTable, bay_table, money
+from bracegrid.costing import Additions, BayTable, bay_table, layout_cost, money
 from bracegrid.errors import InfeasibleError, InputError, SolverLimitError
 from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, Verdict
 from bracegrid.rigidity import check_layout
@@ -260,7 +260,7 @@ def optimize_frame(
         )
 
     add, bound, proven, method = _solve(frame, table, allow, k, options, deadline, report)
-    return _finish(frame, table, add, bound, proven, method, k, start)
+    return _finish(frame, costs, table, add, bound, proven, method, k, start)
 
 
 def _solve(
@@ -384,6 +384,7 @@ def _solve_cp(
 
 def _finish(
     frame: Frame,
+    costs: CostCatalogue,
     table: BayTable,
     add: Additions,
     bound: int,
@@ -410,13 +411,16 @@ def _finish(
     if proven:
         bound = added
     gap = 0.0 if added == 0 else (added - bound) / added
+    # Money is summed from the exact member prices (as the bill of materials does); the
+    # integer units only steer the search, so totals agree to the cent everywhere.
+    cost = layout_cost(frame, costs, members)
     return FrameSolution(
         frame=dataclasses.replace(frame, members=members),
         members=members,
         status=SolveStatus.OPTIMAL if proven else SolveStatus.FEASIBLE,
-        cost=money(table.existing_cost + added),
-        added_cost=money(added),
-        bound=money(table.existing_cost + bound),
+        cost=cost,
+        added_cost=layout_cost(frame, costs, new),
+        bound=cost if proven else min(cost, money(table.existing_cost + bound)),
         gap=round(gap, 6),
         seconds=round(time.monotonic() - start, 3),
         verdict=verdict,
