@@ -251,6 +251,70 @@ class CutModel:
         self.model.add(cp_model.LinearExpr.weighted_sum(terms, coefs) >= need)
         return True
 
+    def add_flow_links(self, model: Any) -> None:
+        """Add to ``model`` (this model or a clone) flows that make it exact for k = 0.
+
+        Node 0 sends one unit of flow to every other node, and every other
+        node sends one unit back to node 0, each along member arcs only
+        (capacity n - 1 on an arc that carries a member, 0 otherwise). Both
+        flows exist iff every node reaches node 0 and is reached from it,
+        i.e. iff the layout is strongly connected, so every answer of the
+        linked model is a stable layout.
+        """
+        from ortools.sat.python import cp_model
+
+        t = self.table
+        r_count, n = t.rows, self.n
+        arcs: list[tuple[int, int, Any]] = []  # (tail, head, member count; None = a kept member)
+        for i in range(r_count):
+            for j in range(t.cols):
+                for tail, head, kept, store in (
+                    (i, r_count + j, int(t.exist_up[i, j]), self.up),
+                    (r_count + j, i, int(t.exist_down[i, j]), self.down),
+                ):
+                    terms = store.get((i, j), [])
+                    if kept > 0:
+                        arcs.append((tail, head, None))
+                    elif terms:
+                        arcs.append((tail, head, sum(terms)))
+        for name, sign in (("fo", 1), ("fi", -1)):
+            net: list[list[Any]] = [[] for _ in range(n)]
+            for a, (tail, head, cap) in enumerate(arcs):
+                f = model.new_int_var(0, n - 1, f"{name}{a}")
+                if cap is not None:
+                    model.add(f <= (n - 1) * cap)
+                net[tail].append(-f)
+                net[head].append(f)
+            for v in range(1, n):
+                # Outward flow: every other node keeps one unit; inward: every other node emits one.
+                model.add(cp_model.LinearExpr.sum(net[v]) == sign)
+
+    def probe(
+        self, bound: int, hint: Additions, *, workers: int, seed: int, seconds: float
+    ) -> tuple[str, Additions | None]:
+        """Look for a stable layout costing at most ``bound`` (a proven lower bound).
+
+        A clone of the model gets the flow links (so every answer is stable)
+        and ``objective <= bound``. A layout found is optimal at once; "none"
+        proves that every stable layout costs more than ``bound``. The model
+        itself is left unchanged.
+
+        Returns:
+            ("found", layout), ("none", None) or ("unknown", None) when time ran out.
+        """
+        from ortools.sat.python import cp_model
+
+        self.hint(hint)
+        probe = self.model.clone()
+        self.add_flow_links(probe)
+        probe.add(self.objective <= bound)
+        solver = cp_model.CpSolver()
+        configure(solver.parameters, workers=workers, seed=seed, seconds=seconds)
+        status = solver.solve(probe)
+        if status in (cp_model.OPTIMAL, cp_model.FEASIBLE):
+            return "found", self.read(solver)
+        return ("none", None) if status == cp_model.INFEASIBLE else ("unknown", None)
+
     def _break_symmetry(self, row_sizes: tuple[int, ...], col_sizes: tuple[int, ...]) -> None:
         """Order interchangeable rows (columns) by their member counts.
 
@@ -405,6 +469,7 @@ def solve_with_cuts(
     on_step: Callable[[LoopReport], None] | None = None,
     initial_bound: int = 0,
     lns_rounds: int = 0,
+    probe_after: float | None = None,
 ) -> CutSolveResult:
     """Run the lazy-cut loop until proven optimal or the deadline.
 
@@ -421,6 +486,9 @@ def solve_with_cuts(
         on_step: Called after every solver call.
         initial_bound: A lower bound known beforehand (e.g. the closed form of the complete frame).
         lns_rounds: Window re-optimisations of the incumbent after each round (0 = none).
+        probe_after: For k = 0, once this share of the time is gone without a proof, spend up
+            to a quarter of the time on one exact search for a layout costing the bound
+            (``CutModel.probe``); None = never.
 
     Returns:
         The best layout, a proven lower bound and whether it is optimal.
@@ -440,10 +508,27 @@ def solve_with_cuts(
     # Window search costs seconds per round: on frames where rounds are quick it only slows
     # the proof, so it waits until 30% of the budget is gone (large frames start at once).
     lns_from = started if table.rows * table.cols > 600 else started + 0.3 * max(0.0, deadline - started)
+    budget = max(0.0, deadline - started)
+    probe_from = None if probe_after is None or k != 0 else started + probe_after * budget
     while not proven:
         remaining = deadline - time.monotonic()
         if remaining <= 0.01:
             break
+        if probe_from is not None and time.monotonic() >= probe_from and best is not None and iterations > 0:
+            # The cut rounds' bound is often already the optimum while the incumbent lags:
+            # one exact search pinned at the bound then finds the layout (and so proves it).
+            probe_from = None
+            outcome, found = cm.probe(bound, best, workers=workers, seed=seed, seconds=min(remaining, 0.25 * budget))
+            if outcome == "found" and found is not None and not violated_cuts(table, found, k):
+                best, best_cost = found, found.cost(table)
+                proven, bound = True, best_cost
+            elif outcome == "none":
+                bound += 1  # no stable layout costs the bound or less
+                if best_cost is not None and bound >= best_cost:
+                    proven, bound = True, best_cost
+            if on_step is not None:
+                on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
+            continue
         if best is not None:
             cm.hint(best)
         if best_cost is not None and best_cost != cutoff and not isinstance(cm.objective, int):

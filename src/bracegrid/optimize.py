@@ -371,6 +371,7 @@ def _solve_cp(
         on_step=step,
         initial_bound=floor,
         lns_rounds=4,
+        probe_after=0.5,
     )
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise --time-limit"
