@@ -15,20 +15,15 @@ import pytest
 
 from bracegrid.cli import main
 from bracegrid.loading import load_project
+from tests.common import project_head
 from tests.physics import physically_rigid
 
 ROOT = Path(__file__).resolve().parents[1]
 QUAYSIDE = str(ROOT / "projects" / "quayside-scaffold.toml")
 
-SMALL = """
-[project]
-name = "cli test"
-[costs.brace]
-per_piece = 25.0
-per_metre = 8.0
-[costs.tie]
-per_piece = 9.0
-per_metre = 3.0
+SMALL = (
+    project_head("cli test")
+    + """
 [[frame]]
 name = "front"
 widths = [3.0, 2.0, 2.5]
@@ -44,6 +39,7 @@ widths = [2.0, 2.0]
 heights = [2.0, 2.0, 2.0]
 supports = "base"
 """
+)
 
 
 def run(*argv: str) -> tuple[int, str, str]:

@@ -24,26 +24,22 @@ from bracegrid.compare import StrategyKey, compare_frame
 from bracegrid.model import CostCatalogue, CostRate, Frame, Supports
 from bracegrid.optimize import SolveOptions
 from bracegrid.rigidity import is_stable
+from tests.common import project_head
 
 OPTIONS = SolveOptions(time_limit=20, workers=1, seed=1)
 # Uniform prices: brace a = 10, tie b = 7 per piece, nothing per metre (so bay sizes do not matter).
 UNIFORM = CostCatalogue(brace=CostRate(10.0, 0.0), tie=CostRate(7.0, 0.0))
 
-PROJECT = """
-[project]
-name = "Compare yard"
-[costs.brace]
-per_piece = 10.0
-per_metre = 0.0
-[costs.tie]
-per_piece = 7.0
-per_metre = 0.0
+PROJECT = (
+    project_head("Compare yard", brace=(10.0, 0.0), tie=(7.0, 0.0))
+    + """
 [[frame]]
 name = "yard plan"
 widths = [3.0, 3.0, 3.0, 3.0]
 heights = [2.5, 2.5, 2.5]
 supports = "free"
 """
+)
 
 
 @pytest.fixture(scope="module")

@@ -21,6 +21,7 @@ from bracegrid.errors import InfeasibleError
 from bracegrid.model import CostCatalogue, Diagonal, Frame, Member, MemberKind, Supports
 from bracegrid.optimize import SolveOptions, optimize_frame, repair_frame
 from bracegrid.rigidity import find_critical_members, is_stable
+from tests.common import project_head
 from tests.physics import physically_rigid
 from tests.validation.test_exhaustive_optimize import _units, exhaustive_minimum
 
@@ -97,15 +98,9 @@ def test_redundancy_two_pinned_base() -> None:
             assert is_stable(f, rest)
 
 
-SMALL = """
-[project]
-name = "repair test"
-[costs.brace]
-per_piece = 25.0
-per_metre = 8.0
-[costs.tie]
-per_piece = 9.0
-per_metre = 3.0
+SMALL = (
+    project_head("repair test")
+    + """
 [[frame]]
 name = "front"
 widths = [3.0, 3.0, 3.0]
@@ -136,6 +131,7 @@ widths = [2.0]
 heights = [2.0, 2.0]
 supports = "base"
 """
+)
 
 
 def run(*argv: str) -> tuple[int, str, str]:
