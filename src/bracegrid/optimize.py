@@ -283,21 +283,16 @@ def _solve(
         if got is None:  # pragma: no cover - ruled out by the feasibility check
             msg = f"frame {frame.name!r}: no layout found"
             raise SolverLimitError(msg)
+    else:
+        got = None
+        if k == 0 and MemberKind.TIE not in allow and shortcuts.existing_is_symmetric(table):
+            got = shortcuts.spanning_tree_braces(table)
+        if got is None and k == 0:
+            got = shortcuts.closed_form(table)
+    if got is not None:
         cost = got.additions.cost(table)
         report(got.method, cost, cost)
         return got.additions, cost, True, got.method
-    if k == 0 and MemberKind.TIE not in allow and shortcuts.existing_is_symmetric(table):
-        got = shortcuts.spanning_tree_braces(table)
-        if got is not None:
-            cost = got.additions.cost(table)
-            report(got.method, cost, cost)
-            return got.additions, cost, True, got.method
-    if k == 0:
-        got = shortcuts.closed_form(table)
-        if got is not None:
-            cost = got.additions.cost(table)
-            report(got.method, cost, cost)
-            return got.additions, cost, True, got.method
     return _solve_cp(frame, table, allow, k, options, deadline, report)
 
 
