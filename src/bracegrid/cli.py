@@ -10,7 +10,7 @@ import argparse
 import json
 import sys
 from collections.abc import Callable, Sequence
-from typing import IO, Any, TextIO
+from typing import Any, TextIO
 
 from bracegrid._version import __version__
 from bracegrid.errors import BraceGridError, InfeasibleError, InputError, SolverLimitError
@@ -129,11 +129,7 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     from bracegrid.report import optimize_dict, progress_line, render_optimize
     from bracegrid.saving import save_project
 
-    problems = []
-    if args.time_limit is not None and not args.time_limit > 0:
-        problems.append(f"--time-limit {args.time_limit}: give a positive number of seconds")
-    if args.workers < 1:
-        problems.append(f"--workers {args.workers}: give at least 1")
+    problems = _solver_problems(args)
     if args.redundancy is not None and args.redundancy < 0:
         problems.append(f"--redundancy {args.redundancy}: give 0 (stable) or more (members that may be lost)")
     if args.keep_clear and not args.without:
@@ -180,11 +176,20 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     return EXIT_OK
 
 
-def _bytes_writer(data: bytes) -> Callable[[IO[bytes]], None]:
-    def put(handle: IO[bytes]) -> None:
-        handle.write(data)
+def _solver_problems(args: argparse.Namespace) -> list[str]:
+    """What is wrong with --time-limit and --workers (shared by optimize and compare)."""
+    problems = []
+    if not args.time_limit > 0:
+        problems.append(f"--time-limit {args.time_limit}: give a positive number of seconds")
+    if args.workers < 1:
+        problems.append(f"--workers {args.workers}: give at least 1")
+    return problems
 
-    return put
+
+def _add_solver_options(p: argparse.ArgumentParser, *, per: str) -> None:
+    p.add_argument("--time-limit", type=float, default=60.0, metavar="S", help=f"seconds per {per} (default 60)")
+    p.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
+    p.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
 
 
 def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
@@ -194,26 +199,19 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     from rich.progress import Progress
 
     from bracegrid.compare import StrategyKey, compare_project
-    from bracegrid.drawing import build_drawing, dxf_bytes
+    from bracegrid.drawing import OutputFile, build_drawing, check_out_folder, dxf_bytes, write_outputs
     from bracegrid.loading import load_project
     from bracegrid.optimize import SolveOptions
     from bracegrid.report import compare_dict, render_compare, render_compare_csv
-    from bracegrid.saving import write_atomic
     from bracegrid.webreport import render_html
 
-    if not args.time_limit > 0:
-        msg = f"--time-limit {args.time_limit}: give a positive number of seconds"
-        raise InputError(msg)
-    if args.workers < 1:
-        msg = f"--workers {args.workers}: give at least 1"
-        raise InputError(msg)
+    problems = _solver_problems(args)
+    if problems:
+        raise InputError(problems)
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     source = Path(args.project)
-    folder = Path(args.out) if args.out else source.with_name(f"{source.stem}-compare")
-    if folder.exists() and not folder.is_dir():
-        msg = f"--out {folder}: exists and is not a folder; give a folder path"
-        raise InputError(msg)
+    folder = check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-compare"))
     options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
     total = len(frames) * len(StrategyKey)
     show = not args.json and sys.stderr.isatty()
@@ -226,14 +224,15 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
 
         comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
     today = date.today()
-    files: dict[str, bytes] = {f"{source.stem}-compare.csv": render_compare_csv(comparison).encode("utf-8")}
+    files = [OutputFile(f"{source.stem}-compare.csv", render_compare_csv(comparison).encode("utf-8"))]
     for key in StrategyKey:
         solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
         if solved:
-            files[f"{source.stem}-{key.value}.dxf"] = dxf_bytes(build_drawing(project, frames=solved, when=today).doc)
+            doc = build_drawing(project, frames=solved, when=today).doc
+            files.append(OutputFile(f"{source.stem}-{key.value}.dxf", dxf_bytes(doc)))
     page = render_html(comparison, when=today, time_limit=args.time_limit)
-    files["report.html"] = page.encode("utf-8")
-    written = [write_atomic(folder / name, _bytes_writer(data)) for name, data in files.items()]
+    files.append(OutputFile("report.html", page.encode("utf-8")))
+    written = write_outputs(folder, files)
     if args.json:
         payload = compare_dict(comparison)
         payload["files"] = [str(p) for p in written]
@@ -303,9 +302,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     _add_common(opt)
     opt.add_argument("--allow", metavar="KINDS", help="member kinds to add, e.g. brace,tie (default: each frame's)")
-    opt.add_argument("--time-limit", type=float, default=60.0, metavar="S", help="seconds per frame (default 60)")
-    opt.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
-    opt.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
+    _add_solver_options(opt, per="frame")
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
     opt.add_argument(
         "--without", nargs="+", default=[], metavar="MEMBER",
@@ -326,10 +323,7 @@ def build_parser() -> argparse.ArgumentParser:
         "strategy and a self-contained report.html. Members in place are kept; proposed ones are dropped.",
     )
     _add_common(cmp_)
-    cmp_.add_argument("--time-limit", type=float, default=60.0, metavar="S",
-                      help="seconds per frame and strategy (default 60)")  # fmt: skip
-    cmp_.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
-    cmp_.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
+    _add_solver_options(cmp_, per="frame and strategy")
     cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
     cmp_.set_defaults(handler=_cmd_compare)

@@ -31,8 +31,8 @@ from enum import Enum
 from bracegrid.baseline import rule_of_thumb_layout
 from bracegrid.costing import layout_cost
 from bracegrid.errors import InfeasibleError
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project
-from bracegrid.optimize import SolveOptions, optimize_frame
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Verdict
+from bracegrid.optimize import FrameSolution, SolveOptions, optimize_frame
 from bracegrid.rigidity import check_layout, redundancy_of
 
 
@@ -145,6 +145,8 @@ def _summary(
     costs: CostCatalogue,
     members: tuple[Member, ...],
     *,
+    verdict: Verdict,
+    redundancy: int,
     status: str,
     seconds: float,
     cost: float | None = None,
@@ -152,7 +154,6 @@ def _summary(
     gap: float | None = None,
     note: str = "",
 ) -> StrategyResult:
-    verdict = check_layout(frame, members)
     braces = sum(1 for m in members if m.kind is MemberKind.BRACE)
     return StrategyResult(
         key=key,
@@ -167,9 +168,32 @@ def _summary(
         length_mm=round(sum(frame.diagonal_length_mm(m.row, m.col) for m in members), 1),
         stable=verdict.stable,
         critical=len(verdict.critical_members),
-        redundancy=redundancy_of(frame, members, at_most=3),
+        redundancy=redundancy,
         note=note,
     )
+
+
+def _from_solution(
+    key: StrategyKey,
+    frame: Frame,
+    costs: CostCatalogue,
+    sol: FrameSolution,
+    *,
+    status: str | None = None,
+    seconds: float | None = None,
+    note: str = "",
+) -> StrategyResult:
+    """A strategy result from an optimizer answer (already re-verified by the optimizer).
+
+    A status given by the caller (the baseline's) replaces the optimizer's, and with it
+    the bound and gap, which then belong to the repair rather than to the strategy.
+    """
+    own = status is None
+    return _summary(
+        key, frame, costs, sol.members, verdict=sol.verdict, redundancy=sol.redundancy,
+        status=sol.status.value if status is None else status, seconds=sol.seconds if seconds is None else seconds,
+        cost=sol.cost, bound=sol.bound if own else None, gap=sol.gap if own else None, note=note,
+    )  # fmt: skip
 
 
 def _infeasible(key: StrategyKey, seconds: float, reason: str) -> StrategyResult:
@@ -190,19 +214,18 @@ def _optimized(key: StrategyKey, frame: Frame, costs: CostCatalogue, options: So
         sol = optimize_frame(frame, costs, options=dataclasses.replace(options, allow=allow, redundancy=k))
     except InfeasibleError as exc:
         return _infeasible(key, time.perf_counter() - t0, "; ".join(exc.reasons))
-    return _summary(
-        key, frame, costs, sol.members, status=sol.status.value, seconds=sol.seconds,
-        cost=sol.cost, bound=sol.bound, gap=sol.gap,
-    )  # fmt: skip
+    return _from_solution(key, frame, costs, sol)
 
 
 def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> StrategyResult:
     t0 = time.perf_counter()
     drawn = rule_of_thumb_layout(frame)
     added = len(drawn) - len(frame.members)
-    if check_layout(frame, drawn).stable:
+    verdict = check_layout(frame, drawn)
+    if verdict.stable:
         note = f"as drawn: {added} members added by the rule, stable without repair"
-        return _summary(StrategyKey.BASELINE, frame, costs, drawn, status="rule of thumb",
+        return _summary(StrategyKey.BASELINE, frame, costs, drawn, verdict=verdict,
+                        redundancy=redundancy_of(frame, drawn), status="rule of thumb",
                         seconds=time.perf_counter() - t0, note=note)  # fmt: skip
     as_drawn = layout_cost(frame, costs, drawn)
     try:
@@ -218,8 +241,8 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
         f"as drawn: {added} members by the rule, costing {as_drawn:.2f}, left a mechanism; "
         f"repair added {repair} members costing {sol.cost - as_drawn:.2f}"
     )
-    return _summary(StrategyKey.BASELINE, frame, costs, sol.members, status="rule of thumb",
-                    seconds=time.perf_counter() - t0, note=note)  # fmt: skip
+    return _from_solution(StrategyKey.BASELINE, frame, costs, sol, status="rule of thumb",
+                          seconds=time.perf_counter() - t0, note=note)  # fmt: skip
 
 
 def compare_frame(

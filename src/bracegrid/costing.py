@@ -58,6 +58,28 @@ def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -
     return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)
 
 
+def leaving_bays(rows: int, cols: int, s: frozenset[int]) -> tuple[BoolArray, BoolArray]:
+    """Bays whose arcs leave node set S: (row -> col arcs, col -> row arcs), each shape (R, C).
+
+    Nodes are numbered as in :mod:`bracegrid.rigidity`: row i is ``i - 1``,
+    column j is ``R + j - 1``. A row -> col arc leaves S when its row is in S and
+    its column is not; a col -> row arc when its column is in S and its row is not.
+
+    Example:
+        >>> up, down = leaving_bays(2, 2, frozenset({0}))
+        >>> up.astype(int).tolist(), down.astype(int).tolist()
+        ([[1, 1], [0, 0]], [[0, 0], [0, 0]])
+    """
+    in_row = np.zeros(rows, dtype=bool)
+    in_col = np.zeros(cols, dtype=bool)
+    for v in s:
+        if v < rows:
+            in_row[v] = True
+        else:
+            in_col[v - rows] = True
+    return in_row[:, None] & ~in_col[None, :], ~in_row[:, None] & in_col[None, :]
+
+
 @dataclass(frozen=True, slots=True)
 class BayTable:
     """What each bay of a frame can still take, and what it already has.

@@ -25,7 +25,7 @@ import numpy as np
 from scipy.sparse import csr_matrix
 from scipy.sparse.csgraph import connected_components, maximum_flow
 
-from bracegrid.costing import Additions, BayTable, BoolArray, IntArray
+from bracegrid.costing import Additions, BayTable, BoolArray, IntArray, leaving_bays
 
 
 @dataclass(frozen=True, slots=True)
@@ -355,16 +355,7 @@ class CutModel:
             return False
         self.cuts.add(s)
         t = self.table
-        r_count = t.rows
-        in_row = np.zeros(r_count, dtype=bool)
-        in_col = np.zeros(t.cols, dtype=bool)
-        for v in s:
-            if v < r_count:
-                in_row[v] = True
-            else:
-                in_col[v - r_count] = True
-        up_mask = in_row[:, None] & ~in_col[None, :]
-        down_mask = ~in_row[:, None] & in_col[None, :]
+        up_mask, down_mask = leaving_bays(t.rows, t.cols, s)
         need = self.k + 1 - int(t.exist_up[up_mask].sum() + t.exist_down[down_mask].sum())
         if need <= 0:
             return True

@@ -525,16 +525,26 @@ def render_outputs(
     return tuple(sheets), tuple(files)
 
 
+def check_out_folder(folder: str | Path) -> Path:
+    """The output folder, if it can be one (it may not exist yet).
+
+    Raises:
+        ExportError: If the path exists and is not a folder.
+    """
+    out = Path(folder)
+    if out.exists() and not out.is_dir():
+        msg = f"--out {out}: exists and is not a folder; give a folder path"
+        raise ExportError(msg)
+    return out
+
+
 def write_outputs(folder: str | Path, files: Sequence[OutputFile]) -> tuple[Path, ...]:
     """Write rendered files into a folder, each atomically.
 
     Raises:
         ExportError: If the folder or a file cannot be written.
     """
-    out = Path(folder)
-    if out.exists() and not out.is_dir():
-        msg = f"--out {out}: exists and is not a folder; give a folder path"
-        raise ExportError(msg)
+    out = check_out_folder(folder)
     written = []
     for item in files:
         written.append(write_atomic(out / item.name, _writer(item.data)))

@@ -11,7 +11,7 @@ import numpy as np
 from scipy.sparse import csr_matrix
 from scipy.sparse.csgraph import connected_components
 
-from bracegrid.costing import Additions, BayTable, IntArray
+from bracegrid.costing import Additions, BayTable, IntArray, leaving_bays
 
 _BIG = np.iinfo(np.int64).max // 4
 
@@ -250,16 +250,8 @@ def _meets(table: BayTable, add: Additions, k: int) -> bool:
 
 def _cut_short(table: BayTable, add: Additions, s: frozenset[int], k: int) -> bool:
     """Whether node set S still has fewer than k + 1 member arcs leaving it."""
-    r_count = table.rows
-    in_row = np.zeros(r_count, dtype=bool)
-    in_col = np.zeros(table.cols, dtype=bool)
-    for v in s:
-        if v < r_count:
-            in_row[v] = True
-        else:
-            in_col[v - r_count] = True
-    leaving = add.up(table)[in_row[:, None] & ~in_col[None, :]].sum()
-    leaving += add.down(table)[~in_row[:, None] & in_col[None, :]].sum()
+    up_mask, down_mask = leaving_bays(table.rows, table.cols, s)
+    leaving = add.up(table)[up_mask].sum() + add.down(table)[down_mask].sum()
     return bool(leaving < k + 1)
 
 
@@ -280,7 +272,6 @@ def constructive_redundant(
 
     from bracegrid.cutmodel import violated_cuts
 
-    r_count = table.rows
     cur = (
         Additions.empty(table.rows, table.cols)
         if start is None
@@ -293,11 +284,10 @@ def constructive_redundant(
         for s in cuts:
             if not _cut_short(table, cur, s, k):
                 continue
-            in_row = np.array([i in s for i in range(r_count)])
-            in_col = np.array([r_count + j in s for j in range(table.cols)])
+            up_mask, down_mask = leaving_bays(table.rows, table.cols, s)
             up, down, up_kind, down_kind = _arc_prices(table, cur)
-            cu = np.where(in_row[:, None] & ~in_col[None, :], up, _BIG)
-            cd = np.where(~in_row[:, None] & in_col[None, :], down, _BIG)
+            cu = np.where(up_mask, up, _BIG)
+            cd = np.where(down_mask, down, _BIG)
             iu, idn = int(cu.argmin()), int(cd.argmin())
             if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
                 return None
