@@ -16,8 +16,8 @@ import tracemalloc
 
 import numpy as np
 
+from bracegrid.analysis import check_layout, find_critical_members
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
-from bracegrid.rigidity import check_layout, find_critical_members
 
 KINDS = (MemberKind.BRACE, MemberKind.TIE)
 DIAGS = (Diagonal.RISING, Diagonal.FALLING)

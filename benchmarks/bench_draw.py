@@ -10,9 +10,9 @@ from __future__ import annotations
 import resource
 import time
 
-from bracegrid.drawing import build_drawing, dxf_bytes
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Supports
-from bracegrid.preview import PreviewFormat, render_preview
+from bracegrid.outputs.drawing import build_drawing, dxf_bytes
+from bracegrid.outputs.preview import PreviewFormat, render_preview
 
 
 def frame(cols: int, rows: int) -> Frame:

@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import replace
 from pathlib import Path
 
-from bracegrid.loading import load_project
+from bracegrid.io import load_project
 from bracegrid.model import Diagonal, Member, MemberKind, Project
 
 ROOT = Path(__file__).resolve().parents[1]

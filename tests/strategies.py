@@ -51,7 +51,7 @@ def near_minimal_layouts(draw: st.DrawFn, *, max_side: int = 12) -> Frame:
     """
     import random
 
-    from bracegrid.rigidity import is_stable
+    from bracegrid.analysis import is_stable
 
     rng = random.Random(draw(st.integers(0, 2**32 - 1)))
     rows, cols = rng.randint(3, max_side), rng.randint(3, max_side)

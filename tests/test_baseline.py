@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
-from bracegrid.baseline import rule_of_thumb_layout
-from bracegrid.geometry import blocked_bays
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
-from bracegrid.rigidity import is_stable
+from bracegrid.analysis import is_stable
+from bracegrid.compare import rule_of_thumb_layout
+from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports, blocked_bays
 
 
 def test_every_row_braced_at_interval_on_a_base() -> None:

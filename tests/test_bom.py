@@ -16,8 +16,8 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
-from bracegrid.bom import build_bom, render_bom_csv, resists
-from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Project
+from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Project, Racking
+from bracegrid.outputs.bill import build_bom, render_bom_csv, resists
 from tests.drawing_cases import braced_quayside
 
 
@@ -99,6 +99,6 @@ def test_csv_round_trip(project: Project) -> None:
 
 def test_resists_follows_the_theory() -> None:
     # THEORY: a rising tie gives row_i <= col_j (resists clockwise racking of the row), a falling tie the other.
-    assert resists(Member(1, 1, MemberKind.TIE, Diagonal.RISING)) == "clockwise"
-    assert resists(Member(1, 1, MemberKind.TIE, Diagonal.FALLING)) == "anticlockwise"
-    assert resists(Member(1, 1, MemberKind.BRACE, Diagonal.FALLING)) == "both"
+    assert resists(Member(1, 1, MemberKind.TIE, Diagonal.RISING)) is Racking.CLOCKWISE
+    assert resists(Member(1, 1, MemberKind.TIE, Diagonal.FALLING)) is Racking.ANTICLOCKWISE
+    assert resists(Member(1, 1, MemberKind.BRACE, Diagonal.FALLING)) is Racking.BOTH

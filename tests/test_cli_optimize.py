@@ -14,7 +14,7 @@ from pathlib import Path
 import pytest
 
 from bracegrid.cli import main
-from bracegrid.loading import load_project
+from bracegrid.io import load_project
 from tests.common import project_head
 from tests.physics import physically_rigid
 

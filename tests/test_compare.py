@@ -19,11 +19,11 @@ from pathlib import Path
 import ezdxf
 import pytest
 
+from bracegrid.analysis import is_stable
 from bracegrid.cli import main
-from bracegrid.compare import StrategyKey, compare_frame
+from bracegrid.compare import StrategyKey, StrategyStatus, compare_frame
 from bracegrid.model import CostCatalogue, CostRate, Frame, Supports
 from bracegrid.optimize import SolveOptions
-from bracegrid.rigidity import is_stable
 from tests.common import project_head
 
 OPTIONS = SolveOptions(time_limit=20, workers=1, seed=1)
@@ -80,7 +80,7 @@ def test_infeasible_strategy_is_reported_not_raised() -> None:
     frame = Frame("strip", (3000, 3000), (2500,), blocked=frozenset({(1, 2)}))
     result = compare_frame(frame, UNIFORM, options=OPTIONS)
     for s in result.strategies:
-        assert s.status == "infeasible"
+        assert s.status is StrategyStatus.INFEASIBLE
         assert s.cost is None
         assert "column 2" in s.note
 
@@ -172,7 +172,7 @@ def test_report_renders_headless(tmp_path: Path) -> None:
 
 def test_totals_over_every_frame() -> None:
     from bracegrid.compare import compare_project
-    from bracegrid.loading import load_project
+    from bracegrid.io import load_project
 
     project = load_project(Path(__file__).resolve().parents[1] / "projects" / "quayside-scaffold.toml")
     comparison = compare_project(project, options=OPTIONS)

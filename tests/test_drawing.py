@@ -20,14 +20,13 @@ from ezdxf import bbox
 from ezdxf.document import Drawing
 
 from bracegrid._version import __version__
-from bracegrid.drawing import DrawnSheet, build_drawing, write_dxf
+from bracegrid.analysis import CAUTION
 from bracegrid.errors import ExportError
-from bracegrid.geometry import blocked_bays
-from bracegrid.layers import Layer
-from bracegrid.loading import load_project
-from bracegrid.model import Diagonal, MemberKind, Supports
-from bracegrid.report import CAUTION
-from bracegrid.symbols import CRITICAL_BLOCK, SUPPORT_BLOCK, TIE_ACW_BLOCK, TIE_CW_BLOCK
+from bracegrid.io import load_project
+from bracegrid.model import Diagonal, MemberKind, Supports, blocked_bays
+from bracegrid.outputs.drawing import DrawnSheet, build_drawing, write_dxf
+from bracegrid.outputs.layers import Layer
+from bracegrid.outputs.symbols import CRITICAL_BLOCK, SUPPORT_BLOCK, TIE_ACW_BLOCK, TIE_CW_BLOCK
 from tests.drawing_cases import ORCHARD, QUAYSIDE, braced_quayside, loose_deck
 
 WHEN = date(2026, 12, 1)

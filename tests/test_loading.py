@@ -10,9 +10,8 @@ import pytest
 
 from bracegrid.cli import main
 from bracegrid.errors import InputError
-from bracegrid.loading import load_project, parse_project
+from bracegrid.io import load_project, parse_project, render_project
 from bracegrid.model import Diagonal, MemberKind, Supports
-from bracegrid.saving import render_project
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -67,7 +66,7 @@ def test_issue_example_loads() -> None:
 
 
 def test_opening_blocks_overlapped_bays_only() -> None:
-    from bracegrid.geometry import blocked_bays
+    from bracegrid.model import blocked_bays
 
     f = parse_project(GOOD).frames[0]
     # Door x 6.2-8.2 m lies in column 3 (6.0-8.4 m); height 3.4 m reaches row 2 (2.0-4.0 m).
@@ -76,7 +75,7 @@ def test_opening_blocks_overlapped_bays_only() -> None:
 
 def test_overlap_fraction_threshold() -> None:
     text = GOOD.replace('allow = ["brace", "tie"]', 'allow = ["brace", "tie"]\nopening_overlap = 0.5')
-    from bracegrid.geometry import blocked_bays
+    from bracegrid.model import blocked_bays
 
     f = parse_project(text).frames[0]
     # Row 2 overlap is 1.4 m of 2.0 m height over 2.0 of 2.4 m width: 58% > 50%: still blocked.
@@ -171,7 +170,7 @@ def test_written_files_get_the_usual_permissions(tmp_path: Path) -> None:
     import os
     import stat
 
-    from bracegrid.saving import write_text_atomic
+    from bracegrid.io import write_text_atomic
 
     umask = os.umask(0)
     os.umask(umask)

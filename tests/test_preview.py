@@ -14,9 +14,9 @@ import numpy as np
 import pytest
 from matplotlib.image import imread
 
-from bracegrid.drawing import DrawnSheet, build_drawing
-from bracegrid.loading import load_project
-from bracegrid.preview import PreviewFormat, preview_pixels, render_preview
+from bracegrid.io import load_project
+from bracegrid.outputs.drawing import DrawnSheet, build_drawing
+from bracegrid.outputs.preview import PreviewFormat, preview_pixels, render_preview
 from tests.drawing_cases import ORCHARD
 
 

@@ -6,8 +6,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Racking, Supports
-from bracegrid.rigidity import (
+from bracegrid.analysis import (
     check_frame,
     check_layout,
     count_racking_modes,
@@ -15,6 +14,7 @@ from bracegrid.rigidity import (
     is_stable,
     redundancy_of,
 )
+from bracegrid.model import Diagonal, Frame, Member, MemberKind, Racking, Supports
 from tests.strategies import frames_with_layouts, near_minimal_layouts
 
 B, T = MemberKind.BRACE, MemberKind.TIE

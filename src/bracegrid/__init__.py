@@ -1,24 +1,33 @@
-"""bracegrid: minimum-cost, proven-stable diagonal bracing of rectangular frames."""
+"""bracegrid: minimum-cost, proven-stable diagonal bracing of rectangular frames.
+
+The package follows the data flow: ``model`` (value types) -> ``io`` (project files) ->
+``analysis`` (the row/column digraph and the stability check) -> ``optimize`` -> ``compare``
+-> ``outputs``; ``cli`` is a thin shell over them. This module re-exports the public API.
+"""
 
 from bracegrid._version import __version__
-from bracegrid.bom import Bom, build_bom, render_bom_csv
-from bracegrid.drawing import DrawnSheet, build_drawing, write_dxf
+from bracegrid.analysis import (
+    LoosePart,
+    Verdict,
+    check_frame,
+    check_layout,
+    find_critical_members,
+    is_stable,
+)
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
-from bracegrid.geometry import blocked_bays
-from bracegrid.loading import load_project, parse_member_refs, parse_project
+from bracegrid.io import load_project, parse_member_refs, parse_project, render_project, save_project
 from bracegrid.model import (
     CostCatalogue,
     CostRate,
     Diagonal,
     Frame,
-    LoosePart,
     Member,
     MemberKind,
     Opening,
     Project,
     Racking,
     Supports,
-    Verdict,
+    blocked_bays,
 )
 from bracegrid.optimize import (
     FrameSolution,
@@ -29,9 +38,17 @@ from bracegrid.optimize import (
     optimize_frame,
     optimize_project,
 )
-from bracegrid.preview import PreviewFormat, render_preview, write_preview
-from bracegrid.rigidity import check_frame, check_layout, find_critical_members, is_stable
-from bracegrid.saving import render_project, save_project
+from bracegrid.outputs import (
+    Bom,
+    DrawnSheet,
+    PreviewFormat,
+    build_bom,
+    build_drawing,
+    render_bom_csv,
+    render_preview,
+    write_dxf,
+    write_preview,
+)
 
 __all__ = [
     "Bom",

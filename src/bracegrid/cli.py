@@ -10,11 +10,13 @@ import argparse
 import json
 import sys
 from collections.abc import Callable, Sequence
-from typing import Any, TextIO
+from typing import Any, TextIO, TypeVar
 
 from bracegrid._version import __version__
-from bracegrid.errors import BraceGridError, InfeasibleError, InputError, SolverLimitError
-from bracegrid.model import Frame, Project
+from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
+from bracegrid.model import Frame, MemberKind, Project
+
+_T = TypeVar("_T")
 
 EXIT_OK = 0
 EXIT_UNSTABLE = 1
@@ -29,6 +31,17 @@ _EXIT_FOR: tuple[tuple[type[BraceGridError], str, int], ...] = (
     (SolverLimitError, "solver limit", EXIT_LIMIT),
     (BraceGridError, "error", EXIT_INPUT),  # InputError, ExportError
 )
+
+
+def _flagged(flag: str, call: Callable[[], _T]) -> _T:
+    """Run a library call whose messages name a value, and put the option it came from in front."""
+    try:
+        return call()
+    except InputError as exc:
+        raise InputError([f"{flag} {p}" for p in exc.problems], source=exc.source) from None
+    except ExportError as exc:
+        msg = f"{flag} {exc}"
+        raise ExportError(msg) from None
 
 
 def _frames(project: Project, name: str | None) -> tuple[Frame, ...]:
@@ -57,16 +70,14 @@ def _emit(out: TextIO, payload: dict[str, Any]) -> None:
 
 
 def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
-    from bracegrid.loading import load_project, parse_member_refs
-    from bracegrid.report import check_dict, render_check
-    from bracegrid.rigidity import check_frame
+    from bracegrid.analysis import check_frame
+    from bracegrid.io import load_project, parse_member_refs
+    from bracegrid.outputs import check_dict, render_check
 
     project = load_project(args.project)
     target = _without_frame(project, args)
-    verdicts = []
-    for frame in _frames(project, args.frame):
-        without = parse_member_refs(frame, args.without) if frame is target else ()
-        verdicts.append(check_frame(frame, without=without))
+    taken = _flagged("--without", lambda: parse_member_refs(target, args.without)) if target is not None else ()
+    verdicts = [check_frame(f, without=taken if f is target else ()) for f in _frames(project, args.frame)]
     if args.json:
         _emit(out, check_dict(verdicts))
     else:
@@ -84,15 +95,17 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
     from datetime import date
     from pathlib import Path
 
-    from bracegrid.drawing import parse_formats, render_outputs, write_outputs
-    from bracegrid.loading import load_project
-    from bracegrid.report import CAUTION
+    from bracegrid.analysis import CAUTION
+    from bracegrid.io import check_out_folder, load_project, write_outputs
+    from bracegrid.outputs import parse_formats, render_outputs
 
-    formats = parse_formats(args.format)
+    formats = _flagged("--format", lambda: parse_formats(args.format))
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     source = Path(args.project)
-    folder = Path(args.out) if args.out else source.with_name(f"{source.stem}-drawings")
+    folder = _flagged(
+        "--out", lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-drawings"))
+    )
     sheets, files = render_outputs(
         project, stem=source.stem, frames=frames, formats=formats, per_frame=args.per_frame, when=date.today()
     )
@@ -109,9 +122,7 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
     return EXIT_OK
 
 
-def _parse_allow(text: str | None) -> frozenset[Any] | None:
-    from bracegrid.model import MemberKind
-
+def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
     if text is None:
         return None
     names = [t.strip().lower() for t in text.split(",") if t.strip()]
@@ -124,10 +135,9 @@ def _parse_allow(text: str | None) -> frozenset[Any] | None:
 
 
 def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
-    from bracegrid.loading import load_project, parse_member_refs
-    from bracegrid.optimize import SolveOptions, optimize_project
-    from bracegrid.report import optimize_dict, progress_line, render_optimize
-    from bracegrid.saving import save_project
+    from bracegrid.io import load_project, parse_member_refs, save_project
+    from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
+    from bracegrid.outputs import optimize_dict, progress_line, render_optimize
 
     problems = _solver_problems(args)
     if args.redundancy is not None and args.redundancy < 0:
@@ -139,7 +149,11 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     target = _without_frame(project, args)
-    without = {target.name: parse_member_refs(target, args.without)} if target is not None else {}
+    without = (
+        {target.name: _flagged("--without", lambda: parse_member_refs(target, args.without))}
+        if target is not None
+        else {}
+    )
     options = SolveOptions(
         time_limit=args.time_limit,
         workers=args.workers,
@@ -149,7 +163,7 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     )
     live = sys.stderr if (not args.json and sys.stderr.isatty()) else None
 
-    def show(event: Any) -> None:
+    def show(event: ProgressEvent) -> None:
         if live is not None:
             live.write("\r\033[K" + progress_line(event))
             live.flush()
@@ -199,11 +213,16 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     from rich.progress import Progress
 
     from bracegrid.compare import StrategyKey, compare_project
-    from bracegrid.drawing import OutputFile, build_drawing, check_out_folder, dxf_bytes, write_outputs
-    from bracegrid.loading import load_project
+    from bracegrid.io import OutputFile, check_out_folder, load_project, write_outputs
     from bracegrid.optimize import SolveOptions
-    from bracegrid.report import compare_dict, render_compare, render_compare_csv
-    from bracegrid.webreport import render_html
+    from bracegrid.outputs import (
+        build_drawing,
+        compare_dict,
+        dxf_bytes,
+        render_compare,
+        render_compare_csv,
+        render_html,
+    )
 
     problems = _solver_problems(args)
     if problems:
@@ -211,7 +230,9 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     source = Path(args.project)
-    folder = check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-compare"))
+    folder = _flagged(
+        "--out", lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-compare"))
+    )
     options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
     total = len(frames) * len(StrategyKey)
     show = not args.json and sys.stderr.isatty()
@@ -252,7 +273,7 @@ def _add_common(p: argparse.ArgumentParser) -> None:
 
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser with every sub-command."""
-    from bracegrid.loading import MEMBER_REF_HELP
+    from bracegrid.io import MEMBER_REF_HELP
 
     parser = argparse.ArgumentParser(
         prog="bracegrid",
@@ -356,7 +377,8 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
         return handler(args, stdout)
     except BraceGridError as exc:
         label, code = next((lab, c) for kind, lab, c in _EXIT_FOR if isinstance(exc, kind))
-        stderr.write(f"{label}: {exc}\n")
+        hint = "; give it more seconds with --time-limit" if isinstance(exc, SolverLimitError) else ""
+        stderr.write(f"{label}: {exc}{hint}\n")
         return code
     except KeyboardInterrupt:
         stderr.write("interrupted\n")

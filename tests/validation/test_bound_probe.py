@@ -15,11 +15,13 @@ import time
 
 import pytest
 
-from bracegrid.costing import bay_table
-from bracegrid.cutmodel import CutModel, solve_with_cuts, violated_cuts
 from bracegrid.model import CostCatalogue, CostRate, Frame, MemberKind, Supports
-from bracegrid.shortcuts import closed_form_cost
-from bracegrid.warmstart import constructive
+from bracegrid.optimize.bays import bay_table
+from bracegrid.optimize.cutloop import solve_with_cuts
+from bracegrid.optimize.cutmodel import CutModel, ProbeOutcome
+from bracegrid.optimize.patterns import closed_form_cost
+from bracegrid.optimize.separation import violated_cuts
+from bracegrid.optimize.warmstart import constructive
 from tests.validation.test_exhaustive_optimize import _random_case, exhaustive_minimum
 
 
@@ -31,7 +33,7 @@ def _free_case(seed: int) -> tuple[Frame, CostCatalogue]:
 
 @pytest.mark.parametrize("seed", range(24))
 def test_probe_at_exhaustive_minimum(seed: int) -> None:
-    """Exhaustive enumeration: found at the minimum, "none" one unit below."""
+    """Exhaustive enumeration: FOUND at the minimum, NONE one unit below."""
     frame, costs = _free_case(seed)
     best = exhaustive_minimum(frame, costs, frame.allow, 10**12)
     if best is None:
@@ -41,13 +43,13 @@ def test_probe_at_exhaustive_minimum(seed: int) -> None:
     assert start is not None
     cm = CutModel(table, k=0, row_sizes=frame.heights, col_sizes=frame.widths)
     outcome, found = cm.probe(best, start, workers=1, seed=0, seconds=20)
-    assert outcome == "found"
+    assert outcome is ProbeOutcome.FOUND
     assert found is not None
     assert found.cost(table) == best
     assert violated_cuts(table, found, 0) == []
     if best > 0:
         outcome, found = cm.probe(best - 1, start, workers=1, seed=0, seconds=20)
-        assert (outcome, found) == ("none", None)
+        assert (outcome, found) == (ProbeOutcome.NONE, None)
 
 
 @pytest.mark.parametrize(("rows", "cols", "a", "b"), [(3, 4, 10, 6), (4, 6, 10, 7), (5, 5, 10, 4)])

@@ -20,12 +20,12 @@ from __future__ import annotations
 
 import pytest
 
-from bracegrid.costing import bay_table
-from bracegrid.cutmodel import solve_with_cuts
 from bracegrid.model import CostCatalogue, CostRate, Frame, MemberKind, Supports
 from bracegrid.optimize import SolveOptions, SolveStatus, optimize_frame
-from bracegrid.shortcuts import closed_form_cost
-from bracegrid.warmstart import constructive
+from bracegrid.optimize.bays import bay_table
+from bracegrid.optimize.cutloop import solve_with_cuts
+from bracegrid.optimize.patterns import closed_form_cost
+from bracegrid.optimize.warmstart import constructive
 from tests.physics import physically_rigid
 from tests.validation.test_exhaustive_optimize import exhaustive_minimum
 

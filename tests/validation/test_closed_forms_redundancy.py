@@ -15,9 +15,9 @@ from __future__ import annotations
 
 import pytest
 
+from bracegrid.analysis import is_stable
 from bracegrid.model import CostCatalogue, CostRate, Frame, MemberKind
 from bracegrid.optimize import SolveOptions, SolveStatus, optimize_frame
-from bracegrid.rigidity import is_stable
 
 OPTS = SolveOptions(time_limit=30, workers=1, seed=0, redundancy=1)
 FLAT = CostCatalogue(brace=CostRate(10, 0), tie=CostRate(4, 0))

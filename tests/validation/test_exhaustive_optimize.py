@@ -17,11 +17,10 @@ import random
 
 import pytest
 
+from bracegrid.analysis import is_stable
 from bracegrid.errors import InfeasibleError
-from bracegrid.geometry import blocked_bays
-from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Supports
+from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Supports, blocked_bays
 from bracegrid.optimize import SolveOptions, SolveStatus, optimize_frame
-from bracegrid.rigidity import is_stable
 from tests.physics import physically_rigid
 
 SIZES = [(1, 2), (1, 3), (2, 1), (2, 2), (2, 3), (3, 2), (1, 4), (3, 1)]

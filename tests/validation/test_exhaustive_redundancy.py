@@ -15,11 +15,10 @@ import random
 
 import pytest
 
+from bracegrid.analysis import is_stable, redundancy_of
 from bracegrid.errors import InfeasibleError
-from bracegrid.geometry import blocked_bays
-from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Supports
+from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Supports, blocked_bays
 from bracegrid.optimize import SolveOptions, SolveStatus, optimize_frame
-from bracegrid.rigidity import is_stable, redundancy_of
 from tests.physics import physically_rigid
 from tests.validation.test_exhaustive_optimize import _strong, _units
 

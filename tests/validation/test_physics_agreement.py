@@ -17,8 +17,8 @@ import dataclasses
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from bracegrid.analysis import is_stable
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
-from bracegrid.rigidity import is_stable
 from tests.physics import physically_rigid
 from tests.strategies import frames_with_layouts, transpose
 

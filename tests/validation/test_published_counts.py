@@ -24,8 +24,8 @@ from collections.abc import Iterator
 import networkx as nx
 import pytest
 
+from bracegrid.analysis import frame_digraph, is_stable
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
-from bracegrid.rigidity import frame_digraph, is_stable
 
 B, T = MemberKind.BRACE, MemberKind.TIE
 

@@ -1,4 +1,4 @@
-"""Cost alternative bracing strategies for a frame side by side.
+"""Strategies: alternative bracing layouts for a frame, solved and costed side by side.
 
 Five strategies per frame, each re-verified by the stability check:
 
@@ -28,12 +28,11 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from enum import Enum
 
-from bracegrid.baseline import rule_of_thumb_layout
-from bracegrid.costing import layout_cost
+from bracegrid.analysis import Verdict, check_layout, redundancy_of
+from bracegrid.compare.baseline import rule_of_thumb_layout
 from bracegrid.errors import InfeasibleError
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Verdict
-from bracegrid.optimize import FrameSolution, SolveOptions, optimize_frame
-from bracegrid.rigidity import check_layout, redundancy_of
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, layout_cost
+from bracegrid.optimize import FrameSolution, SolveOptions, SolveStatus, optimize_frame
 
 
 class StrategyKey(Enum):
@@ -49,6 +48,24 @@ class StrategyKey(Enum):
     def title(self) -> str:
         """Heading used in tables and reports."""
         return _TITLES[self]
+
+
+class StrategyStatus(Enum):
+    """How a strategy's layout stands."""
+
+    OPTIMAL = "optimal"
+    """Proven minimum cost for the strategy."""
+    FEASIBLE = "feasible"
+    """Stable, but the time limit came before a proof (see bound and gap)."""
+    RULE_OF_THUMB = "rule of thumb"
+    """The hand-drawn style layout (repaired where it left a mechanism)."""
+    INFEASIBLE = "infeasible"
+    """No layout exists under the strategy (see the note)."""
+
+    @classmethod
+    def of(cls, status: SolveStatus) -> StrategyStatus:
+        """The strategy status of an optimizer answer."""
+        return cls.OPTIMAL if status is SolveStatus.OPTIMAL else cls.FEASIBLE
 
 
 _TITLES = {
@@ -69,7 +86,7 @@ class StrategyResult:
     Attributes:
         key: Which strategy.
         frame: The frame carrying the strategy's full layout (None if infeasible).
-        status: "optimal", "feasible" (time limit, see gap), "rule of thumb" or "infeasible".
+        status: Optimal, feasible (time limit, see gap), rule of thumb or infeasible.
         cost: Whole-layout cost (money), None if infeasible.
         bound: Proven lower bound on the cost, None where not applicable.
         gap: Relative gap to the bound, None where not applicable.
@@ -85,7 +102,7 @@ class StrategyResult:
 
     key: StrategyKey
     frame: Frame | None
-    status: str
+    status: StrategyStatus
     cost: float | None
     bound: float | None
     gap: float | None
@@ -147,7 +164,7 @@ def _summary(
     *,
     verdict: Verdict,
     redundancy: int,
-    status: str,
+    status: StrategyStatus,
     seconds: float,
     cost: float | None = None,
     bound: float | None = None,
@@ -179,7 +196,7 @@ def _from_solution(
     costs: CostCatalogue,
     sol: FrameSolution,
     *,
-    status: str | None = None,
+    status: StrategyStatus | None = None,
     seconds: float | None = None,
     note: str = "",
 ) -> StrategyResult:
@@ -191,15 +208,17 @@ def _from_solution(
     own = status is None
     return _summary(
         key, frame, costs, sol.members, verdict=sol.verdict, redundancy=sol.redundancy,
-        status=sol.status.value if status is None else status, seconds=sol.seconds if seconds is None else seconds,
-        cost=sol.cost, bound=sol.bound if own else None, gap=sol.gap if own else None, note=note,
+        status=StrategyStatus.of(sol.status) if status is None else status,
+        seconds=sol.seconds if seconds is None else seconds, cost=sol.cost,
+        bound=sol.bound if own else None, gap=sol.gap if own else None, note=note,
     )  # fmt: skip
 
 
 def _infeasible(key: StrategyKey, seconds: float, reason: str) -> StrategyResult:
     return StrategyResult(
-        key=key, frame=None, status="infeasible", cost=None, bound=None, gap=None, seconds=round(seconds, 3),
-        braces=0, ties=0, length_mm=0.0, stable=False, critical=0, redundancy=-1, note=reason,
+        key=key, frame=None, status=StrategyStatus.INFEASIBLE, cost=None, bound=None, gap=None,
+        seconds=round(seconds, 3), braces=0, ties=0, length_mm=0.0, stable=False, critical=0, redundancy=-1,
+        note=reason,
     )  # fmt: skip
 
 
@@ -225,7 +244,7 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
     if verdict.stable:
         note = f"as drawn: {added} members added by the rule, stable without repair"
         return _summary(StrategyKey.BASELINE, frame, costs, drawn, verdict=verdict,
-                        redundancy=redundancy_of(frame, drawn), status="rule of thumb",
+                        redundancy=redundancy_of(frame, drawn), status=StrategyStatus.RULE_OF_THUMB,
                         seconds=time.perf_counter() - t0, note=note)  # fmt: skip
     as_drawn = layout_cost(frame, costs, drawn)
     try:
@@ -241,7 +260,7 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
         f"as drawn: {added} members by the rule, costing {as_drawn:.2f}, left a mechanism; "
         f"repair added {repair} members costing {sol.cost - as_drawn:.2f}"
     )
-    return _from_solution(StrategyKey.BASELINE, frame, costs, sol, status="rule of thumb",
+    return _from_solution(StrategyKey.BASELINE, frame, costs, sol, status=StrategyStatus.RULE_OF_THUMB,
                           seconds=time.perf_counter() - t0, note=note)  # fmt: skip
 
 

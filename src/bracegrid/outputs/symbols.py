@@ -1,4 +1,4 @@
-"""Styles, linetypes and blocks shared by every bracegrid drawing.
+"""Symbols: text and dimension styles, linetypes and blocks shared by every bracegrid drawing.
 
 Blocks are drawn in paper millimetres around their insertion point and
 inserted with the sheet's scale factor, so a symbol keeps its printed size
@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING
 
-from bracegrid.layers import Layer
+from bracegrid.outputs.layers import Layer
 
 if TYPE_CHECKING:
     from ezdxf.document import Drawing

@@ -19,7 +19,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from bracegrid.costing import Additions, BayTable
+from bracegrid.analysis.digraph import bay_arcs, strong_components
+from bracegrid.optimize.bays import Additions, AdditionsBuilder, BayTable
+from bracegrid.optimize.patterns import PatternKind, closed_form_cost, pattern
+from bracegrid.optimize.results import SolveMethod, method_words
 
 
 @dataclass(frozen=True, slots=True)
@@ -28,13 +31,18 @@ class Shortcut:
 
     Attributes:
         additions: The new members.
-        method: Short description for reports.
-        proven: True when the layout is proven minimal.
+        method: Which exact route found it.
+        pattern: The closed-form layout, for :attr:`SolveMethod.CLOSED_FORM`.
     """
 
     additions: Additions
-    method: str
-    proven: bool = True
+    method: SolveMethod
+    pattern: PatternKind | None = None
+
+    @property
+    def words(self) -> str:
+        """The method in words."""
+        return method_words(self.method, pattern=self.pattern)
 
 
 class _Union:
@@ -57,19 +65,11 @@ class _Union:
 
 def existing_is_symmetric(table: BayTable) -> bool:
     """Whether every kept arc has its reverse (so strong parts = connected parts)."""
-    from scipy.sparse import csr_matrix
-    from scipy.sparse.csgraph import connected_components
-
-    r_count, c_count = table.rows, table.cols
-    n = r_count + c_count
-    ui, uj = np.nonzero(table.exist_up)
-    di, dj = np.nonzero(table.exist_down)
-    src = np.concatenate([ui, r_count + dj])
-    dst = np.concatenate([r_count + uj, di])
-    g = csr_matrix((np.ones(len(src), dtype=np.int8), (src, dst)), shape=(n, n))
-    strong, _ = connected_components(g, directed=True, connection="strong")
-    weak, _ = connected_components(g, directed=True, connection="weak")
-    return bool(strong == weak)
+    n = table.rows + table.cols
+    src, dst, _ = bay_arcs(table.exist_up, table.exist_down)
+    strong, _ = strong_components(n, src, dst)
+    weak, _ = strong_components(n, np.concatenate([src, dst]), np.concatenate([dst, src]))
+    return strong == weak
 
 
 def spanning_tree_braces(table: BayTable) -> Shortcut | None:
@@ -82,7 +82,7 @@ def spanning_tree_braces(table: BayTable) -> Shortcut | None:
         The braces, or None when the allowed bays cannot connect every node.
 
     Example:
-        >>> from bracegrid.costing import bay_table
+        >>> from bracegrid.optimize.bays import bay_table
         >>> from bracegrid.model import CostCatalogue, Frame, MemberKind
         >>> t = bay_table(Frame("f", (3000,) * 3, (2000,) * 2), CostCatalogue(), (), frozenset({MemberKind.BRACE}))
         >>> int(spanning_tree_braces(t).additions.braces.sum())  # R + C - 1
@@ -92,7 +92,7 @@ def spanning_tree_braces(table: BayTable) -> Shortcut | None:
     uf = _Union(r_count + c_count)
     for i, j in zip(*np.nonzero((table.exist_up > 0) | (table.exist_down > 0)), strict=True):
         uf.join(int(i), r_count + int(j))
-    add = Additions.empty(r_count, c_count)
+    add = AdditionsBuilder.empty(r_count, c_count)
     bi, bj = np.nonzero(table.brace_ok)
     order = np.lexsort((bj, bi, table.brace_cost[bi, bj]))
     for k in order:
@@ -102,7 +102,7 @@ def spanning_tree_braces(table: BayTable) -> Shortcut | None:
     roots = {uf.find(v) for v in range(r_count + c_count)}
     if len(roots) > 1:
         return None
-    return Shortcut(add, "minimum spanning tree of braces")
+    return Shortcut(add.build(), SolveMethod.SPANNING_TREE)
 
 
 def _row_options(table: BayTable, i: int, j: int, k: int) -> list[tuple[int, int, int, int]]:
@@ -132,7 +132,7 @@ def pinned_base_rows(table: BayTable, *, k: int = 0) -> Shortcut | None:
         The members, or None when some row cannot reach k+1 arcs each way.
 
     Example:
-        >>> from bracegrid.costing import bay_table
+        >>> from bracegrid.optimize.bays import bay_table
         >>> from bracegrid.model import CostCatalogue, Frame, MemberKind
         >>> t = bay_table(Frame("f", (3000,) * 3, (2000,) * 4), CostCatalogue(), (), frozenset(MemberKind))
         >>> s = pinned_base_rows(t)
@@ -140,7 +140,7 @@ def pinned_base_rows(table: BayTable, *, k: int = 0) -> Shortcut | None:
         (0, 8)
     """
     need = k + 1
-    add = Additions.empty(table.rows, table.cols)
+    add = AdditionsBuilder.empty(table.rows, table.cols)
     for i in range(table.rows):
         start = (min(need, int(table.exist_up[i].sum())), min(need, int(table.exist_down[i].sum())))
         # best[state] = (cost, choices)
@@ -162,7 +162,7 @@ def pinned_base_rows(table: BayTable, *, k: int = 0) -> Shortcut | None:
             add.braces[i, j] += b
             add.rising[i, j] += tr
             add.falling[i, j] += tf
-    return Shortcut(add, "pinned-base rows (exact per row)")
+    return Shortcut(add.build(), SolveMethod.PINNED_ROWS)
 
 
 def closed_form_applies(table: BayTable) -> bool:
@@ -175,27 +175,6 @@ def closed_form_applies(table: BayTable) -> bool:
     )
 
 
-def closed_form_cost(rows: int, cols: int, brace: int | None, tie: int | None) -> int:
-    """Minimum cost of a complete free frame with uniform costs (None = kind not allowed).
-
-    ``r = min(R, C)``, ``c = max(R, C)``: braces only ``(r+c-1)a``, ties only
-    ``2cb``, both ``min((r+c-1)a, 2rb + (c-r)a, 2cb)``.
-
-    Example:
-        >>> closed_form_cost(4, 6, 10, 7)  # min(90, 56 + 20, 84)
-        76
-    """
-    r, c = min(rows, cols), max(rows, cols)
-    options = []
-    if brace is not None:
-        options.append((r + c - 1) * brace)
-    if tie is not None:
-        options.append(2 * c * tie)
-    if brace is not None and tie is not None:
-        options.append(2 * r * tie + (c - r) * brace)
-    return min(options)
-
-
 def closed_form(table: BayTable) -> Shortcut | None:
     """The closed-form optimum and a layout reaching it, on a complete uniform free frame.
 
@@ -203,7 +182,7 @@ def closed_form(table: BayTable) -> Shortcut | None:
         The layout, or None when the frame is not complete and uniform.
 
     Example:
-        >>> from bracegrid.costing import bay_table
+        >>> from bracegrid.optimize.bays import bay_table
         >>> from bracegrid.model import CostCatalogue, Frame, MemberKind
         >>> t = bay_table(Frame("f", (3000,) * 6, (3000,) * 4), CostCatalogue(), (), frozenset(MemberKind))
         >>> s = closed_form(t)
@@ -219,56 +198,9 @@ def closed_form(table: BayTable) -> Shortcut | None:
         return None
     best = closed_form_cost(r_count, c_count, a, b)
     if a is not None and best == (r_count + c_count - 1) * a:
-        kind = "tree"
+        kind = PatternKind.TREE
     elif b is not None and best == 2 * max(r_count, c_count) * b:
-        kind = "cycle"
+        kind = PatternKind.CYCLE
     else:
-        kind = "mixed"
-    add = pattern(r_count, c_count, kind)
-    return Shortcut(add, f"closed form: {PATTERN_NAMES[kind]}")
-
-
-PATTERN_NAMES = {"tree": "spanning tree of braces", "cycle": "one cycle of ties", "mixed": "tie cycle plus braces"}
-
-
-def pattern(r_count: int, c_count: int, kind: str) -> Additions:
-    """The closed-form layouts of a complete R x C frame.
-
-    Args:
-        r_count: Rows.
-        c_count: Columns.
-        kind: ``"tree"`` (R+C-1 braces), ``"cycle"`` (2 max(R,C) ties) or
-            ``"mixed"`` (2 min(R,C) ties in a cycle, braces for the rest).
-
-    Returns:
-        The members as additions.
-
-    Example:
-        >>> a = pattern(2, 3, "mixed")
-        >>> int(a.braces.sum()), int(a.rising.sum() + a.falling.sum())
-        (1, 4)
-    """
-    r, c = min(r_count, c_count), max(r_count, c_count)
-    # Work as if rows are the short side; transpose at the end when R > C.
-    braces = np.zeros((r, c), dtype=np.int64)
-    rising = np.zeros((r, c), dtype=np.int64)
-    falling = np.zeros((r, c), dtype=np.int64)
-    if kind == "tree":
-        braces[0, :] = 1
-        braces[1:, 0] = 1
-    elif kind == "cycle":
-        # One directed cycle col j -> row (j mod r) -> col j+1, through every column.
-        for j in range(c):
-            falling[j % r, j] = 1
-            rising[j % r, (j + 1) % c] = 1
-    else:
-        # Tie cycle over the r short-side nodes and r long-side nodes, braces for the rest.
-        for j in range(r):
-            falling[j, j] = 1
-            rising[j, (j + 1) % r] = 1
-        braces[0, r:] = 1
-    if r_count > c_count:
-        # Transposing swaps rows and columns, which reverses every tie's arc
-        # (row->col becomes col->row): a rising tie becomes a falling one.
-        braces, rising, falling = braces.T.copy(), falling.T.copy(), rising.T.copy()
-    return Additions(braces, rising, falling)
+        kind = PatternKind.MIXED
+    return Shortcut(pattern(r_count, c_count, kind), SolveMethod.CLOSED_FORM, kind)

@@ -1,4 +1,4 @@
-"""Quick-look previews (PNG, SVG, PDF) of the very sheet written to DXF.
+"""Previews: quick-look PNG, SVG and PDF of the very sheet written to DXF.
 
 The DXF document is rendered with ezdxf's drawing add-on on a matplotlib
 figure (non-interactive Agg backend) of the sheet's paper size, so the
@@ -10,13 +10,10 @@ from __future__ import annotations
 import io
 from enum import Enum
 from pathlib import Path
-from typing import IO, TYPE_CHECKING
 
 from bracegrid.errors import ExportError
-from bracegrid.saving import write_atomic
-
-if TYPE_CHECKING:
-    from bracegrid.drawing import DrawnSheet
+from bracegrid.io import write_bytes_atomic
+from bracegrid.outputs.drawing import DrawnSheet
 
 _MM_PER_INCH = 25.4
 
@@ -33,7 +30,7 @@ def preview_pixels(sheet: DrawnSheet, *, dpi: int = 150) -> tuple[int, int]:
     """Width and height in pixels of a PNG preview at ``dpi``.
 
     Example:
-        >>> from bracegrid.drawing import build_drawing
+        >>> from bracegrid.outputs.drawing import build_drawing
         >>> from bracegrid.model import Frame, Project
         >>> preview_pixels(build_drawing(Project("p", (Frame("f", (3000,), (2000,)),))), dpi=100)
         (1654, 1169)
@@ -95,8 +92,4 @@ def write_preview(sheet: DrawnSheet, path: str | Path, fmt: PreviewFormat, *, dp
     except (ValueError, RuntimeError, OSError) as exc:
         msg = f"cannot render the {fmt.value} preview for {path}: {exc}"
         raise ExportError(msg) from exc
-
-    def write(handle: IO[bytes]) -> None:
-        handle.write(data)
-
-    return write_atomic(path, write)
+    return write_bytes_atomic(path, data)

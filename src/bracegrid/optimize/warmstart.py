@@ -2,34 +2,25 @@
 
 Used as the first incumbent, to turn every relaxed solver answer into a
 stable layout (an upper bound), and as the fallback when the time limit
-leaves nothing better. Nodes: row i is ``i - 1``, column j is ``R + j - 1``.
+leaves nothing better. Work in progress lives in an :class:`AdditionsBuilder`;
+every function returns frozen :class:`Additions`.
 """
 
 from __future__ import annotations
 
-import numpy as np
-from scipy.sparse import csr_matrix
-from scipy.sparse.csgraph import connected_components
+import time
 
-from bracegrid.costing import Additions, BayTable, IntArray, leaving_bays
+import numpy as np
+
+from bracegrid.analysis.digraph import IntArray, leaving_bays, split_labels
+from bracegrid.optimize.bays import Additions, AdditionsBuilder, BayCounts, BayTable
+from bracegrid.optimize.patterns import PatternKind, pattern
+from bracegrid.optimize.separation import cut_short, is_strong, meets, strong_labels, violated_cuts
 
 _BIG = np.iinfo(np.int64).max // 4
 
 
-def strong_labels(table: BayTable, add: Additions) -> tuple[int, IntArray]:
-    """Strong components of kept + added members (free frame)."""
-    r_count, c_count = table.rows, table.cols
-    n = r_count + c_count
-    ui, uj = np.nonzero(add.up(table))
-    di, dj = np.nonzero(add.down(table))
-    src = np.concatenate([ui, r_count + dj])
-    dst = np.concatenate([r_count + uj, di])
-    g = csr_matrix((np.ones(len(src), dtype=np.int8), (src, dst)), shape=(n, n))
-    count, labels = connected_components(g, directed=True, connection="strong")
-    return int(count), labels.astype(np.int64)
-
-
-def _arc_prices(table: BayTable, add: Additions) -> tuple[IntArray, IntArray, IntArray, IntArray]:
+def _arc_prices(table: BayTable, add: BayCounts) -> tuple[IntArray, IntArray, IntArray, IntArray]:
     """Cheapest new member giving each up / down arc per bay, and whether it is a brace (1) or tie (0)."""
     used = add.braces + add.rising + add.falling
     slots = table.free_slots - used
@@ -44,7 +35,7 @@ def _arc_prices(table: BayTable, add: Additions) -> tuple[IntArray, IntArray, In
     return up, down, up_kind, down_kind
 
 
-def repair(table: BayTable, add: Additions) -> Additions | None:
+def repair(table: BayTable, add: BayCounts) -> Additions | None:
     """Add cheap members until the free frame is strongly connected.
 
     Repeatedly takes a component with no arc leaving it (a sink of the
@@ -55,13 +46,12 @@ def repair(table: BayTable, add: Additions) -> Additions | None:
     Returns:
         The repaired additions, or None if no allowed member can finish the job.
     """
-    r_count = table.rows
-    cur = Additions(add.braces.copy(), add.rising.copy(), add.falling.copy())
+    cur = AdditionsBuilder(add.braces, add.rising, add.falling)
     while True:
         count, labels = strong_labels(table, cur)
         if count == 1:
-            return cur
-        row_lab, col_lab = labels[:r_count], labels[r_count:]
+            return cur.build()
+        row_lab, col_lab = split_labels(table.rows, labels)
         up_arcs = cur.up(table) > 0
         down_arcs = cur.down(table) > 0
         cross_up = up_arcs & (row_lab[:, None] != col_lab[None, :])
@@ -116,7 +106,7 @@ def repair(table: BayTable, add: Additions) -> Additions | None:
             cur.falling[i, j] += 1
 
 
-def prune(table: BayTable, add: Additions) -> Additions:
+def prune(table: BayTable, add: BayCounts) -> Additions:
     """Drop new members (dearest first) and turn braces into ties while the frame stays stable.
 
     Args:
@@ -126,7 +116,7 @@ def prune(table: BayTable, add: Additions) -> Additions:
     Returns:
         Additions no more expensive, still stable, with no member removable.
     """
-    cur = Additions(add.braces.copy(), add.rising.copy(), add.falling.copy())
+    cur = AdditionsBuilder(add.braces, add.rising, add.falling)
     items: list[tuple[int, int, int, str]] = []
     for name, arr, price in (("b", cur.braces, table.brace_cost), ("r", cur.rising, table.tie_cost),
                              ("f", cur.falling, table.tie_cost)):  # fmt: skip
@@ -139,24 +129,24 @@ def prune(table: BayTable, add: Additions) -> Additions:
         if arr[i, j] == 0:
             continue
         arr[i, j] -= 1
-        if strong_labels(table, cur)[0] == 1:
+        if is_strong(table, cur):
             continue
         if name == "b" and table.tie_ok and table.tie_cost[i, j] < table.brace_cost[i, j]:
             for tie_name, ok in (("r", table.rising_free), ("f", table.falling_free)):
                 tarr = arrays[tie_name]
                 if ok[i, j] and tarr[i, j] == 0:
                     tarr[i, j] += 1
-                    if strong_labels(table, cur)[0] == 1:
+                    if is_strong(table, cur):
                         break
                     tarr[i, j] -= 1
             else:
                 arr[i, j] += 1
             continue
         arr[i, j] += 1
-    return cur
+    return cur.build()
 
 
-def _fit(table: BayTable, add: Additions) -> Additions:
+def _fit(table: BayTable, add: BayCounts) -> Additions:
     """Keep only the members of a pattern that the bays can take."""
     slots = table.free_slots
     braces = np.where(table.brace_ok, np.minimum(add.braces, slots), 0)
@@ -183,22 +173,18 @@ def pattern_starts(
     Returns:
         The cheapest stable layout found, or None.
     """
-    from bracegrid.shortcuts import pattern
-
     rng = np.random.default_rng(seed)
     kinds = []
     if table.brace_ok.any():
-        kinds.append("tree")
+        kinds.append(PatternKind.TREE)
     if table.tie_ok:
-        kinds.append("cycle")
+        kinds.append(PatternKind.CYCLE)
         if table.brace_ok.any():
-            kinds.append("mixed")
+            kinds.append(PatternKind.MIXED)
     best: Additions | None = None
     best_cost = 0
     row_order = np.argsort(table.tie_cost.mean(axis=1), kind="stable")
     col_order = np.argsort(table.tie_cost.mean(axis=0), kind="stable")
-    import time
-
     for attempt in range(tries):
         if attempt > 0 and deadline is not None and time.monotonic() > deadline:
             break
@@ -210,7 +196,7 @@ def pattern_starts(
             rows, cols = rng.permutation(table.rows), rng.permutation(table.cols)
         for kind in kinds:
             base = pattern(table.rows, table.cols, kind)
-            placed = Additions.empty(table.rows, table.cols)
+            placed = AdditionsBuilder.empty(table.rows, table.cols)
             for arr_in, arr_out in ((base.braces, placed.braces), (base.rising, placed.rising),
                                     (base.falling, placed.falling)):  # fmt: skip
                 arr_out[np.ix_(rows, cols)] = arr_in
@@ -220,7 +206,7 @@ def pattern_starts(
     return best
 
 
-def constructive(table: BayTable, start: Additions | None = None) -> Additions | None:
+def constructive(table: BayTable, start: BayCounts | None = None) -> Additions | None:
     """Repair then prune, from ``start`` or from nothing.
 
     Returns:
@@ -231,32 +217,8 @@ def constructive(table: BayTable, start: Additions | None = None) -> Additions |
     return None if fixed is None else prune(table, fixed)
 
 
-def _meets(table: BayTable, add: Additions, k: int) -> bool:
-    """Every cut has k + 1 member arcs (maximum flows from node 0 and back, stopping at the first short one)."""
-    from scipy.sparse.csgraph import maximum_flow
-
-    from bracegrid.cutmodel import arc_lists
-
-    n = table.rows + table.cols
-    src, dst, cap = arc_lists(table, add)
-    g = csr_matrix((cap.astype(np.int32), (src, dst)), shape=(n, n))
-    gt = g.T.tocsr()
-    for v in range(1, n):
-        for graph in (g, gt):
-            if maximum_flow(graph, 0, v).flow_value < k + 1:
-                return False
-    return True
-
-
-def _cut_short(table: BayTable, add: Additions, s: frozenset[int], k: int) -> bool:
-    """Whether node set S still has fewer than k + 1 member arcs leaving it."""
-    up_mask, down_mask = leaving_bays(table.rows, table.cols, s)
-    leaving = add.up(table)[up_mask].sum() + add.down(table)[down_mask].sum()
-    return bool(leaving < k + 1)
-
-
 def constructive_redundant(
-    table: BayTable, start: Additions | None, k: int, *, deadline: float | None = None
+    table: BayTable, start: BayCounts | None, k: int, *, deadline: float | None = None
 ) -> Additions | None:
     """Greedy layout of a free frame whose every cut has k + 1 member arcs, then pruned.
 
@@ -268,21 +230,17 @@ def constructive_redundant(
     Returns:
         The additions, or None if the allowed members cannot satisfy some cut.
     """
-    import time
-
-    from bracegrid.cutmodel import violated_cuts
-
     cur = (
-        Additions.empty(table.rows, table.cols)
+        AdditionsBuilder.empty(table.rows, table.cols)
         if start is None
-        else Additions(start.braces.copy(), start.rising.copy(), start.falling.copy())
+        else AdditionsBuilder(start.braces, start.rising, start.falling)
     )
     while True:
         cuts = violated_cuts(table, cur, k)
         if not cuts:
             break
         for s in cuts:
-            if not _cut_short(table, cur, s, k):
+            if not cut_short(table, cur, s, k):
                 continue
             up_mask, down_mask = leaving_bays(table.rows, table.cols, s)
             up, down, up_kind, down_kind = _arc_prices(table, cur)
@@ -310,12 +268,12 @@ def constructive_redundant(
         if deadline is not None and time.monotonic() > deadline:
             break
         arrays[name][i, j] -= 1
-        if not _meets(table, cur, k):
+        if not meets(table, cur, k):
             arrays[name][i, j] += 1
-    return cur
+    return cur.build()
 
 
-def _fit_many(table: BayTable, add: Additions) -> Additions:
+def _fit_many(table: BayTable, add: BayCounts) -> Additions:
     """Clip summed patterns to what each bay can take (ties first, braces on what is left)."""
     slots = table.free_slots
     rising = np.where(table.rising_tie_ok, np.minimum(add.rising, 1), 0)
@@ -339,12 +297,8 @@ def redundant_pattern_starts(
     Returns:
         The cheapest layout found whose every cut has k + 1 member arcs, or None.
     """
-    import time
-
-    from bracegrid.shortcuts import pattern
-
     rng = np.random.default_rng(seed)
-    base = pattern(table.rows, table.cols, "cycle")
+    base = pattern(table.rows, table.cols, PatternKind.CYCLE)
     walk = (base.rising + base.falling) > 0
     styles = []
     if table.brace_ok.any():
@@ -357,7 +311,7 @@ def redundant_pattern_starts(
         if attempt > 0 and deadline is not None and time.monotonic() > deadline:
             break
         for style in styles:
-            total = Additions.empty(table.rows, table.cols)
+            total = AdditionsBuilder.empty(table.rows, table.cols)
             for layer in range(max(1, k)):
                 if attempt == 0:
                     rows = np.roll(np.arange(table.rows), layer)

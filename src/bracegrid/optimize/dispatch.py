@@ -1,4 +1,4 @@
-"""Minimum-cost stable layouts: shortcuts where exact ones exist, CP-SAT with directed cuts otherwise.
+"""Dispatch: minimum-cost stable layouts by exact shortcuts where they exist, the cut loop otherwise.
 
 Dispatch for one frame (docs/optimizer.md explains each route):
 
@@ -8,8 +8,8 @@ Dispatch for one frame (docs/optimizer.md explains each route):
 4. otherwise: CP-SAT on the cut model with lazily separated directed cuts,
    warm-started from a greedy repair layout, with symmetry breaking.
 
-Every layout returned is re-verified with :func:`bracegrid.rigidity.check_layout`
-(and, when redundancy is asked, :func:`bracegrid.rigidity.redundancy_of`).
+Every layout returned is re-verified with :func:`bracegrid.analysis.check_layout`
+(and, when redundancy is asked, :func:`bracegrid.analysis.redundancy_of`).
 
 References:
     E. D. Bolker and H. Crapo, "Bracing rectangular frameworks. I",
@@ -24,181 +24,39 @@ import dataclasses
 import time
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
-from enum import Enum
 
-import numpy as np
-
-from bracegrid.costing import Additions, BayTable, bay_table, layout_cost, money
+from bracegrid.analysis import check_layout, redundancy_of
 from bracegrid.errors import InfeasibleError, InputError, SolverLimitError
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, Verdict
-from bracegrid.rigidity import check_layout
-
-#: Largest redundancy the optimizer accepts (the achieved value is measured up to this cap).
-MAX_REDUNDANCY = 8
-
-
-class SolveStatus(Enum):
-    """How good a returned layout is known to be."""
-
-    OPTIMAL = "optimal"
-    """Proven minimum cost."""
-    FEASIBLE = "feasible"
-    """Stable, but the time limit came before a proof; see the bound and gap."""
-
-
-@dataclass(frozen=True, slots=True)
-class SolveOptions:
-    """Options of the optimizer.
-
-    Attributes:
-        time_limit: Wall-clock seconds per frame.
-        workers: CP-SAT worker threads.
-        seed: CP-SAT random seed. With one worker, or when a run ends before
-            its time limit, the same seed gives the same layout.
-        allow: Member kinds that may be added (None = each frame's own ``allow``).
-        redundancy: Members whose loss the layout must survive (None = each frame's own).
-    """
-
-    time_limit: float = 60.0
-    workers: int = 2
-    seed: int = 0
-    allow: frozenset[MemberKind] | None = None
-    redundancy: int | None = None
-
-
-@dataclass(frozen=True, slots=True)
-class ProgressEvent:
-    """A progress report while a frame is being solved.
-
-    Attributes:
-        frame: Frame name.
-        cost: Best stable layout cost so far (whole layout, money), None if none yet.
-        bound: Proven lower bound on the whole layout cost (money).
-        gap: Relative gap on the added cost, None if no layout yet.
-        seconds: Time spent on this frame.
-        stage: What is running.
-    """
-
-    frame: str
-    cost: float | None
-    bound: float
-    gap: float | None
-    seconds: float
-    stage: str
-
-
-@dataclass(frozen=True, slots=True)
-class FrameSolution:
-    """The optimizer's answer for one frame.
-
-    Attributes:
-        frame: The frame with ``members`` replaced by the full layout.
-        members: Kept members (as they were) followed by new ones (``existing=False``).
-        status: Optimal or feasible.
-        cost: Cost of the whole layout, kept members included (money, two decimals).
-        added_cost: Cost of the new members only.
-        bound: Proven lower bound on ``cost``.
-        gap: ``(added_cost - (bound - kept cost)) / added_cost`` (0 when proven or nothing added).
-        seconds: Wall-clock time spent.
-        verdict: Stability check of the layout (always stable).
-        method: How it was solved.
-        redundancy: Member losses the layout is proven to survive.
-    """
-
-    frame: Frame
-    members: tuple[Member, ...]
-    status: SolveStatus
-    cost: float
-    added_cost: float
-    bound: float
-    gap: float
-    seconds: float
-    verdict: Verdict
-    method: str
-    redundancy: int = 0
-
-
-@dataclass(frozen=True, slots=True)
-class ProjectSolution:
-    """The optimizer's answer for a project.
-
-    Attributes:
-        project: The project with solved frames' members replaced by their layouts.
-        frames: One solution per solved frame, in project order.
-        cost: Sum of the frames' layout costs.
-        added_cost: Sum of the frames' added costs.
-    """
-
-    project: Project
-    frames: tuple[FrameSolution, ...]
-    cost: float
-    added_cost: float
-
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, layout_cost
+from bracegrid.optimize import shortcuts, warmstart
+from bracegrid.optimize.bays import Additions, BayTable, bay_table, money
+from bracegrid.optimize.cutloop import LoopReport, solve_with_cuts
+from bracegrid.optimize.diagnosis import infeasible_reasons
+from bracegrid.optimize.patterns import PatternKind, closed_form_cost
+from bracegrid.optimize.results import (
+    MAX_REDUNDANCY,
+    FrameSolution,
+    ProgressEvent,
+    ProjectSolution,
+    SolveMethod,
+    SolveOptions,
+    SolveStatus,
+)
 
 Progress = Callable[[ProgressEvent], None]
 
 
-def _max_additions(table: BayTable, k: int) -> Additions:
-    """Every member that could be added (dominant per bay): the most arcs both ways."""
-    slots = table.free_slots
-    top = np.minimum(slots, 2 if k > 0 else 1)
-    braces = np.where(table.brace_ok, top, 0).astype(np.int64)
-    rising = np.where(~table.brace_ok & table.rising_tie_ok, 1, 0).astype(np.int64)
-    falling = np.where(~table.brace_ok & table.falling_tie_ok, 1, 0).astype(np.int64)
-    return Additions(braces, rising, falling)
+@dataclass(frozen=True, slots=True)
+class _Found:
+    """A route's answer before re-verification: the new members, the bound and how they were found."""
 
-
-def _infeasible_reasons(frame: Frame, table: BayTable, allow: frozenset[MemberKind], k: int) -> list[str]:
-    """Why no layout exists (empty when one does)."""
-    from bracegrid.report import anchor_words, describe_part
-    from bracegrid.rigidity import redundancy_of
-
-    full = _max_additions(table, k)
-    kept = tuple(frame.members)
-    members = kept + full.members(table)
-    verdict = check_layout(frame, members)
-    if verdict.stable and (k == 0 or redundancy_of(frame, members) >= k):
-        return []
-    name = frame.name
-    reasons: list[str] = []
-    open_row = (table.free_slots > 0) | (table.exist_up + table.exist_down > 0)
-    for i in range(table.rows):
-        if not open_row[i].any():
-            reasons.append(
-                f"frame {name!r}: row {i + 1} has every bay blocked, so nothing can stop it racking; "
-                "unblock a bay in that row"
-            )
-    if frame.supports is Supports.FREE:
-        for j in range(table.cols):
-            if not open_row[:, j].any():
-                reasons.append(
-                    f"frame {name!r}: column {j + 1} has every bay blocked, so nothing ties it to the rest; "
-                    "unblock a bay in that column or pin the base"
-                )
-        if allow == frozenset({MemberKind.TIE}) and min(table.rows, table.cols) == 1 and not verdict.stable:
-            line = "row" if table.rows == 1 else "column"
-            reasons.append(
-                f"frame {name!r}: ties only with supports free on a 1-{line} frame needs both diagonals of "
-                f"every bay (an X of ties, or a kept brace): each {'column' if line == 'row' else 'row'} is "
-                "held only through its own bay; clear those bays, allow braces or pin the base"
-            )
-    if not verdict.stable:
-        if not reasons:
-            anchor = anchor_words(verdict)
-            allowed = " and ".join(sorted(kd.value + "s" for kd in allow)) or "no member kinds"
-            for part in verdict.loose_parts:
-                reasons.append(
-                    f"frame {name!r}: even with {allowed} in every free diagonal, {describe_part(part, anchor)}; "
-                    "unblock bays or allow more member kinds"
-                )
-    elif k > 0:
-        got = redundancy_of(frame, members)
-        reasons.append(
-            f"frame {name!r}: redundancy {k} asked, but even with every allowed member in every free diagonal "
-            f"the frame survives the loss of only {got} member(s); lower the redundancy, unblock bays or "
-            "allow more member kinds"
-        )
-    return reasons
+    additions: Additions
+    bound: int
+    proven: bool
+    method: SolveMethod
+    pattern: PatternKind | None = None
+    rounds: int = 0
+    cuts: int = 0
 
 
 def optimize_frame(
@@ -228,8 +86,8 @@ def optimize_frame(
         >>> from bracegrid.model import Frame
         >>> sol = optimize_frame(Frame("f", (3000,) * 3, (2000,) * 2, allow=frozenset({MemberKind.BRACE})),
         ...                      CostCatalogue())
-        >>> sol.status.value, len(sol.members), sol.method
-        ('optimal', 4, 'minimum spanning tree of braces')
+        >>> sol.status.value, len(sol.members), sol.method.value
+        ('optimal', 4, 'spanning-tree')
     """
     start = time.monotonic()
     deadline = start + max(0.0, options.time_limit)
@@ -240,7 +98,7 @@ def optimize_frame(
         raise InputError(msg)
     kept = tuple(frame.members)
     table = bay_table(frame, costs, kept, allow)
-    reasons = _infeasible_reasons(frame, table, allow, k)
+    reasons = infeasible_reasons(frame, table, allow, k)
     if reasons:
         raise InfeasibleError(reasons)
 
@@ -259,8 +117,8 @@ def optimize_frame(
             )
         )
 
-    add, bound, proven, method = _solve(frame, table, allow, k, options, deadline, report)
-    return _finish(frame, costs, table, add, bound, proven, method, k, start)
+    found = _solve(frame, table, allow, k, options, deadline, report)
+    return _finish(frame, costs, table, found, k, start)
 
 
 def _solve(
@@ -271,13 +129,10 @@ def _solve(
     options: SolveOptions,
     deadline: float,
     report: Callable[[str, int | None, int], None],
-) -> tuple[Additions, int, bool, str]:
-    from bracegrid import shortcuts
-    from bracegrid.rigidity import redundancy_of
-
+) -> _Found:
     if redundancy_of(frame, frame.members) >= k:
         report("kept members suffice", 0, 0)
-        return Additions.empty(table.rows, table.cols), 0, True, "kept members already suffice"
+        return _Found(Additions.empty(table.rows, table.cols), 0, True, SolveMethod.KEPT)
     if frame.supports is Supports.BASE:
         got = shortcuts.pinned_base_rows(table, k=k)
         if got is None:  # pragma: no cover - ruled out by the feasibility check
@@ -291,8 +146,8 @@ def _solve(
             got = shortcuts.closed_form(table)
     if got is not None:
         cost = got.additions.cost(table)
-        report(got.method, cost, cost)
-        return got.additions, cost, True, got.method
+        report(got.words, cost, cost)
+        return _Found(got.additions, cost, True, got.method, pattern=got.pattern)
     return _solve_cp(frame, table, allow, k, options, deadline, report)
 
 
@@ -311,9 +166,7 @@ def _solve_cp(
     options: SolveOptions,
     deadline: float,
     report: Callable[[str, int | None, int], None],
-) -> tuple[Additions, int, bool, str]:
-    from bracegrid import cutmodel, shortcuts, warmstart
-
+) -> _Found:
     start_time = time.monotonic()
     improve: Callable[[Additions], Additions | None]
     if k == 0:
@@ -341,7 +194,7 @@ def _solve_cp(
     incumbent = min(found, key=lambda a: a.cost(table)) if found else None
     report("warm start", None if incumbent is None else incumbent.cost(table), 0)
 
-    def step(s: cutmodel.LoopReport) -> None:
+    def step(s: LoopReport) -> None:
         report(f"CP-SAT directed cuts (round {s.iteration}, {s.cuts} cuts)", s.best, s.bound)
 
     floor = 0
@@ -352,8 +205,8 @@ def _solve_cp(
         a = int(table.brace_cost[open_bays].min()) if table.brace_ok.any() else None
         b = int(table.tie_cost[open_bays].min()) if table.tie_ok and open_bays.any() else None
         if a is not None or b is not None:
-            floor = shortcuts.closed_form_cost(table.rows, table.cols, a, b)
-    result = cutmodel.solve_with_cuts(
+            floor = closed_form_cost(table.rows, table.cols, a, b)
+    result = solve_with_cuts(
         table,
         k=k,
         row_sizes=frame.heights,
@@ -369,28 +222,21 @@ def _solve_cp(
         probe_after=0.5,
     )
     if result.additions is None:
-        msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise --time-limit"
+        msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
         raise SolverLimitError(msg)
-    if result.iterations == 0:
-        method = "pattern layout, proven by the complete-frame closed-form bound"
-    else:
-        method = f"CP-SAT directed cuts ({result.iterations} rounds, {result.cuts} cuts)"
-    return result.additions, result.bound, result.proven, method
+    method = SolveMethod.PATTERN_BOUND if result.iterations == 0 else SolveMethod.CUT_LOOP
+    return _Found(result.additions, result.bound, result.proven, method, rounds=result.iterations, cuts=result.cuts)
 
 
 def _finish(
     frame: Frame,
     costs: CostCatalogue,
     table: BayTable,
-    add: Additions,
-    bound: int,
-    proven: bool,
-    method: str,
+    found: _Found,
     k: int,
     start: float,
 ) -> FrameSolution:
-    from bracegrid.rigidity import redundancy_of
-
+    add, bound, proven = found.additions, found.bound, found.proven
     kept = tuple(frame.members)
     new = add.members(table)
     members = kept + tuple(sorted(new, key=lambda m: m.sort_key))
@@ -420,8 +266,11 @@ def _finish(
         gap=round(gap, 6),
         seconds=round(time.monotonic() - start, 3),
         verdict=verdict,
-        method=method,
+        method=found.method,
         redundancy=achieved,
+        pattern=found.pattern,
+        rounds=found.rounds,
+        cuts=found.cuts,
     )
 
 
@@ -452,7 +301,7 @@ def repair_frame(
         InfeasibleError: If no repair exists (e.g. the cleared bay was the only one left in a row).
 
     Example:
-        >>> from bracegrid.model import Frame, Member, Diagonal
+        >>> from bracegrid.model import Diagonal
         >>> b = MemberKind.BRACE
         >>> tree = tuple(Member(r, c, b, Diagonal.RISING) for r, c in ((1, 1), (1, 2), (2, 1)))
         >>> f = Frame("f", (3000, 3000), (2000, 2000), members=tree)
@@ -500,7 +349,7 @@ def optimize_project(
         InfeasibleError: If some frame has no stable layout (all such frames' reasons together).
 
     Example:
-        >>> from bracegrid.model import Frame, Supports
+        >>> from bracegrid.model import Supports
         >>> p = Project("p", (Frame("f", (2500,) * 4, (2000,) * 3, supports=Supports.BASE),))
         >>> sol = optimize_project(p)
         >>> len(sol.frames[0].members), sol.frames[0].status.value

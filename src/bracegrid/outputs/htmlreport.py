@@ -1,4 +1,4 @@
-"""The self-contained HTML report of ``bracegrid compare``.
+"""The HTML report of ``bracegrid compare``: one self-contained file.
 
 One file: inline CSS, inline SVG drawings, no scripts and no network fetches,
 so it opens straight from disk and can be mailed to a client.
@@ -11,12 +11,12 @@ import re
 from datetime import date
 
 from bracegrid._version import __version__
-from bracegrid.bom import FrameBom, build_bom
+from bracegrid.analysis import CAUTION
 from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult
-from bracegrid.drawing import build_drawing
 from bracegrid.model import Project
-from bracegrid.preview import PreviewFormat, render_preview
-from bracegrid.report import CAUTION
+from bracegrid.outputs.bill import FrameBom, build_bom
+from bracegrid.outputs.drawing import build_drawing
+from bracegrid.outputs.preview import PreviewFormat, render_preview
 from bracegrid.units import format_length_m
 
 _STYLE = """
@@ -79,7 +79,7 @@ def _comparison_table(fc: FrameComparison) -> str:
         stable = "yes" if s.stable else "<span class=bad>NO</span>"
         survives = "-" if s.redundancy < 0 else f"{s.redundancy} member{'s' if s.redundancy != 1 else ''}"
         rows.append(
-            f"<tr{best}><td class=l>{_e(s.key.title)}</td><td class=l>{_e(s.status)}</td>"
+            f"<tr{best}><td class=l>{_e(s.key.title)}</td><td class=l>{_e(s.status.value)}</td>"
             f"<td>{s.braces}</td><td>{s.ties}</td><td>{format_length_m(s.length_mm)}</td>"
             f"<td>{_money(s.cost)}</td><td>{_money(fc.saving(s.key))}</td><td>{stable}</td>"
             f"<td>{s.critical}</td><td>{survives}</td><td>{_pct(s.gap)}</td><td>{s.seconds:.2f}</td></tr>"
@@ -128,7 +128,7 @@ def _strategy_section(project: Project, fc: FrameComparison, s: StrategyResult, 
     bom = build_bom(project, frames=[s.frame]).frames[0]
     caption = (
         f"{s.braces} braces, {s.ties} ties, cost {_money(s.cost)}; "
-        f"{'stable' if s.stable else 'NOT STABLE'} (re-verified); status {s.status}"
+        f"{'stable' if s.stable else 'NOT STABLE'} (re-verified); status {s.status.value}"
     )
     figure = f"<figure>{svg}<figcaption>{_e(caption)}</figcaption></figure>"
     return f"{title}{figure}<h4>Bill of materials</h4>{_bom_table(bom)}"

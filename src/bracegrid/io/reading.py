@@ -1,4 +1,4 @@
-"""Project file (TOML) -> validated :class:`~bracegrid.model.Project`.
+"""Reading project files: TOML text -> a validated :class:`~bracegrid.model.Project`.
 
 Validation collects every problem it finds, each with the file, line (of the
 table it sits in), field and value and a way to fix it, then raises one
@@ -12,7 +12,7 @@ import difflib
 import math
 import re
 import tomllib
-from collections.abc import Mapping, Sequence
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, TypeVar
@@ -21,7 +21,6 @@ from shapely.geometry import box
 from shapely.validation import explain_validity
 
 from bracegrid.errors import InputError
-from bracegrid.geometry import blocked_bays, opening_polygon
 from bracegrid.model import (
     CostCatalogue,
     CostRate,
@@ -32,6 +31,8 @@ from bracegrid.model import (
     Opening,
     Project,
     Supports,
+    blocked_bays,
+    opening_polygon,
 )
 from bracegrid.units import MM_PER_UNIT, parse_length
 
@@ -485,54 +486,3 @@ def load_project(path: str | Path) -> Project:
         msg = f"cannot read the file ({exc}); check it is a UTF-8 text file you may read"
         raise InputError(msg, source=str(p)) from None
     return parse_project(text, source=str(p))
-
-
-_MEMBER_REF = re.compile(r"^\s*r(\d+)\s*c(\d+)\s*(?::\s*(rising|falling|r|f))?\s*$", re.IGNORECASE)
-
-#: Help text for the compact member syntax used on the command line.
-MEMBER_REF_HELP = (
-    "a member by bay: rROWcCOL takes out every member in that bay (e.g. r2c3); "
-    "rROWcCOL:rising or :falling (or :r / :f) takes out one diagonal (e.g. r2c3:f). "
-    "Rows count from 1 at the bottom, columns from 1 at the left."
-)
-
-
-def parse_member_refs(frame: Frame, refs: Sequence[str]) -> tuple[Member, ...]:
-    """Resolve compact member references (``r2c3``, ``r2c3:rising``) in a frame.
-
-    Args:
-        frame: The frame whose members are referred to.
-        refs: The references as typed.
-
-    Returns:
-        The members referred to, in frame order, without repeats.
-
-    Raises:
-        InputError: With every reference that is malformed or matches no member.
-
-    Example:
-        >>> from bracegrid.model import Frame, Member, MemberKind, Diagonal
-        >>> m = Member(2, 3, MemberKind.TIE, Diagonal.FALLING)
-        >>> f = Frame("f", (1000,) * 3, (1000,) * 2, members=(m,))
-        >>> parse_member_refs(f, ["r2c3:f"]) == (m,)
-        True
-    """
-    problems: list[str] = []
-    chosen: set[Member] = set()
-    for ref in refs:
-        match = _MEMBER_REF.match(ref)
-        if match is None:
-            problems.append(f"--without {ref!r}: not a member reference; {MEMBER_REF_HELP}")
-            continue
-        row, col = int(match.group(1)), int(match.group(2))
-        side = (match.group(3) or "").lower()
-        diagonal = {"r": Diagonal.RISING, "f": Diagonal.FALLING}.get(side[:1])
-        found = [m for m in frame.members if m.bay == (row, col) and (diagonal is None or m.diagonal is diagonal)]
-        if not found:
-            here = [m.label for m in frame.members if m.bay == (row, col)]
-            hint = f"that bay holds {', '.join(here)}" if here else "that bay holds no member"
-            problems.append(f"--without {ref!r}: no such member in frame {frame.name!r} ({hint})")
-        chosen.update(found)
-    if problems:
-        raise InputError(problems)
-    return tuple(m for m in frame.members if m in chosen)

@@ -1,4 +1,4 @@
-"""Integer member costs and the per-bay tables the optimizer works on.
+"""The optimizer's per-bay tables: integer member costs, free diagonals, kept arcs, and new members.
 
 Money in the optimizer is an integer number of *cost units*: one unit is
 1/10000 of the project's money unit (a hundredth of a cent). Each member's
@@ -10,17 +10,19 @@ with two decimals.
 
 from __future__ import annotations
 
-from collections.abc import Iterable
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 
 import numpy as np
 import numpy.typing as npt
 
-from bracegrid.geometry import blocked_bays
-from bracegrid.model import CostCatalogue, Diagonal, Frame, Member, MemberKind
+from bracegrid.analysis.digraph import BoolArray, IntArray, bay_arc_counts, member_bay_counts
+from bracegrid.model import CostCatalogue, Diagonal, Frame, Member, MemberKind, blocked_bays
 
-IntArray = npt.NDArray[np.int64]
-BoolArray = npt.NDArray[np.bool_]
+
+def _read_only(array: npt.NDArray[np.generic]) -> npt.NDArray[np.generic]:
+    array.setflags(write=False)
+    return array
+
 
 #: Cost units per money unit.
 SCALE = 10_000
@@ -46,40 +48,6 @@ def money(units: int | float) -> float:
     return round(units / SCALE, 2)
 
 
-def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -> float:
-    """Price of every member of a layout, from the exact member prices, rounded to cents.
-
-    Example:
-        >>> from bracegrid.model import Diagonal, Member
-        >>> f = Frame("f", (3000,), (4000,))
-        >>> layout_cost(f, CostCatalogue(), [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
-        65.0
-    """
-    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)
-
-
-def leaving_bays(rows: int, cols: int, s: frozenset[int]) -> tuple[BoolArray, BoolArray]:
-    """Bays whose arcs leave node set S: (row -> col arcs, col -> row arcs), each shape (R, C).
-
-    Nodes are numbered as in :mod:`bracegrid.rigidity`: row i is ``i - 1``,
-    column j is ``R + j - 1``. A row -> col arc leaves S when its row is in S and
-    its column is not; a col -> row arc when its column is in S and its row is not.
-
-    Example:
-        >>> up, down = leaving_bays(2, 2, frozenset({0}))
-        >>> up.astype(int).tolist(), down.astype(int).tolist()
-        ([[1, 1], [0, 0]], [[0, 0], [0, 0]])
-    """
-    in_row = np.zeros(rows, dtype=bool)
-    in_col = np.zeros(cols, dtype=bool)
-    for v in s:
-        if v < rows:
-            in_row[v] = True
-        else:
-            in_col[v - rows] = True
-    return in_row[:, None] & ~in_col[None, :], ~in_row[:, None] & in_col[None, :]
-
-
 @dataclass(frozen=True, slots=True)
 class BayTable:
     """What each bay of a frame can still take, and what it already has.
@@ -98,6 +66,8 @@ class BayTable:
         exist_up: Existing members giving the arc row -> col.
         exist_down: Existing members giving the arc col -> row.
         existing_cost: Cost units of the existing members together.
+
+    Every array is read-only: derive a changed table with ``dataclasses.replace``.
     """
 
     rows: int
@@ -111,6 +81,12 @@ class BayTable:
     exist_up: IntArray
     exist_down: IntArray
     existing_cost: int
+
+    def __post_init__(self) -> None:
+        for f in fields(self):
+            value = getattr(self, f.name)
+            if isinstance(value, np.ndarray):
+                _read_only(value)
 
     @property
     def free_slots(self) -> IntArray:
@@ -161,18 +137,12 @@ def bay_table(
         open_bay[r - 1, c - 1] = False
     rising_free = open_bay.copy()
     falling_free = open_bay.copy()
-    exist_up = np.zeros((r_count, c_count), dtype=np.int64)
-    exist_down = np.zeros((r_count, c_count), dtype=np.int64)
+    exist_up, exist_down = member_bay_counts(members, r_count, c_count)
     existing_cost = 0
     for m in members:
         i, j = m.row - 1, m.col - 1
         (rising_free if m.diagonal is Diagonal.RISING else falling_free)[i, j] = False
-        brace = m.kind is MemberKind.BRACE
-        if brace or m.diagonal is Diagonal.RISING:
-            exist_up[i, j] += 1
-        if brace or m.diagonal is Diagonal.FALLING:
-            exist_down[i, j] += 1
-        existing_cost += int((brace_cost if brace else tie_cost)[i, j])
+        existing_cost += int((brace_cost if m.kind is MemberKind.BRACE else tie_cost)[i, j])
     brace_ok = (rising_free | falling_free) & (MemberKind.BRACE in allow)
     return BayTable(
         rows=r_count,
@@ -189,25 +159,17 @@ def bay_table(
     )
 
 
-@dataclass(frozen=True, slots=True)
-class Additions:
-    """New members per bay: braces (0-2), rising ties (0/1), falling ties (0/1).
+class BayCounts:
+    """New members per bay, read side: braces (0-2), rising ties (0/1), falling ties (0/1).
 
-    Attributes:
-        braces: New braces per bay.
-        rising: New rising ties per bay.
-        falling: New falling ties per bay.
+    Shared by the frozen :class:`Additions` and the mutable :class:`AdditionsBuilder`; every
+    array has shape (R, C), indexed [row - 1, col - 1].
     """
 
+    __slots__ = ()
     braces: IntArray
     rising: IntArray
     falling: IntArray
-
-    @classmethod
-    def empty(cls, rows: int, cols: int) -> Additions:
-        """No new members."""
-        z = np.zeros((rows, cols), dtype=np.int64)
-        return cls(z.copy(), z.copy(), z.copy())
 
     def cost(self, table: BayTable) -> int:
         """Cost units of the new members."""
@@ -215,11 +177,11 @@ class Additions:
 
     def up(self, table: BayTable) -> IntArray:
         """Member arcs row -> col per bay, existing included."""
-        return table.exist_up + self.braces + self.rising
+        return table.exist_up + bay_arc_counts(self.braces, self.rising, self.falling)[0]
 
     def down(self, table: BayTable) -> IntArray:
         """Member arcs col -> row per bay, existing included."""
-        return table.exist_down + self.braces + self.falling
+        return table.exist_down + bay_arc_counts(self.braces, self.rising, self.falling)[1]
 
     def members(self, table: BayTable) -> tuple[Member, ...]:
         """The new members, each on a free diagonal (ties on their own, braces on what is left).
@@ -246,3 +208,56 @@ class Additions:
                 free[spot] = False
                 out.append(Member(row, col, MemberKind.BRACE, spot, existing=False))
         return tuple(out)
+
+
+@dataclass(frozen=True, slots=True)
+class Additions(BayCounts):
+    """A finished set of new members per bay; its arrays are read-only copies.
+
+    Attributes:
+        braces: New braces per bay.
+        rising: New rising ties per bay.
+        falling: New falling ties per bay.
+    """
+
+    braces: IntArray
+    rising: IntArray
+    falling: IntArray
+
+    def __post_init__(self) -> None:
+        for name in ("braces", "rising", "falling"):
+            object.__setattr__(self, name, _read_only(np.array(getattr(self, name), dtype=np.int64)))
+
+    @classmethod
+    def empty(cls, rows: int, cols: int) -> Additions:
+        """No new members."""
+        z = np.zeros((rows, cols), dtype=np.int64)
+        return cls(z, z, z)
+
+    def builder(self) -> AdditionsBuilder:
+        """A mutable copy to add members to."""
+        return AdditionsBuilder(self.braces, self.rising, self.falling)
+
+
+class AdditionsBuilder(BayCounts):
+    """New members per bay while a construction is under way: the arrays may be changed in place.
+
+    Call :meth:`build` for the frozen :class:`Additions` once the layout is done.
+    """
+
+    __slots__ = ("braces", "falling", "rising")
+
+    def __init__(self, braces: IntArray, rising: IntArray, falling: IntArray) -> None:
+        self.braces = np.array(braces, dtype=np.int64)
+        self.rising = np.array(rising, dtype=np.int64)
+        self.falling = np.array(falling, dtype=np.int64)
+
+    @classmethod
+    def empty(cls, rows: int, cols: int) -> AdditionsBuilder:
+        """Nothing added yet."""
+        z = np.zeros((rows, cols), dtype=np.int64)
+        return cls(z, z, z)
+
+    def build(self) -> Additions:
+        """The frozen additions (copies: later changes to the builder do not reach them)."""
+        return Additions(self.braces, self.rising, self.falling)

@@ -1,4 +1,4 @@
-"""Bill of materials: every diagonal member with its cut length and price.
+"""The bill of materials: every diagonal member with its cut length and price, and the CSV.
 
 The cut length is the node-to-node length of the bay diagonal (centre line of
 the grid), ``hypot(width, height)``; end allowances for couplers, plates or
@@ -13,7 +13,7 @@ import io
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project
+from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Racking
 
 
 @dataclass(frozen=True, slots=True)
@@ -162,7 +162,7 @@ def frame_bom(frame: Frame, project: Project) -> FrameBom:
         Lines, cutting list and totals.
 
     Example:
-        >>> from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project
+        >>> from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Racking
         >>> f = Frame("f", (3000,), (4000,), members=(Member(1, 1, MemberKind.BRACE, Diagonal.RISING),))
         >>> b = frame_bom(f, Project("p", (f,)))
         >>> b.lines[0].cut_length_mm, b.totals.cost
@@ -187,7 +187,6 @@ def build_bom(project: Project, *, frames: Sequence[Frame] | None = None) -> Bom
         Per-frame bills and the totals over them.
 
     Example:
-        >>> from bracegrid.model import Frame, Project
         >>> build_bom(Project("p", (Frame("f", (3000,), (2000,)),))).totals.members
         0
     """
@@ -210,7 +209,7 @@ CSV_COLUMNS: tuple[str, ...] = (
 )
 
 
-def resists(member: Member) -> str:
+def resists(member: Member) -> Racking:
     """Which racking sense of its row a member resists.
 
     A brace resists both; a rising tie resists clockwise racking (the row's top
@@ -218,11 +217,11 @@ def resists(member: Member) -> str:
 
     Example:
         >>> resists(Member(1, 1, MemberKind.TIE, Diagonal.RISING))
-        'clockwise'
+        <Racking.CLOCKWISE: 'clockwise'>
     """
     if member.kind is MemberKind.BRACE:
-        return "both"
-    return "clockwise" if member.diagonal is Diagonal.RISING else "anticlockwise"
+        return Racking.BOTH
+    return Racking.CLOCKWISE if member.diagonal is Diagonal.RISING else Racking.ANTICLOCKWISE
 
 
 def render_bom_csv(bom: Bom) -> str:
@@ -232,7 +231,6 @@ def render_bom_csv(bom: Bom) -> str:
     ``total``); their ``cut_length_mm`` is the summed length.
 
     Example:
-        >>> from bracegrid.model import Frame, Project
         >>> render_bom_csv(build_bom(Project("p", (Frame("f", (3000,), (2000,)),)))).splitlines()[0]
         'frame,row,col,kind,diagonal,status,resists,cut_length_mm,cost'
     """
@@ -256,7 +254,7 @@ def render_bom_csv(bom: Bom) -> str:
                     m.kind.value,
                     m.diagonal.value,
                     "existing" if m.existing else "proposed",
-                    resists(m),
+                    resists(m).value,
                     f"{x.cut_length_mm:.0f}",
                     f"{x.cost:.2f}",
                 ]

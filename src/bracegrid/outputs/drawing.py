@@ -1,4 +1,4 @@
-"""Marked-up DXF drawings of frames: grid, members, markers, dimensions, bill and title block.
+"""The drawing: marked-up DXF sheets of frames with grid, members, markers, dimensions, bill and title block.
 
 One sheet holds the chosen frames side by side on a common ground line, with
 the legend, the bill of materials and the title block along the bottom. The
@@ -6,7 +6,7 @@ model space is in millimetres (``$INSUNITS`` = 4) at true size; annotation is
 sized in paper millimetres times the sheet scale. Layers, symbols and the
 bill's columns are documented in docs/drawings.md.
 
-Every frame is re-checked with :func:`bracegrid.rigidity.check_frame` before
+Every frame is re-checked with :func:`bracegrid.analysis.check_frame` before
 it is drawn: the verdict, loose parts and critical members on the sheet come
 from that check, never from the caller.
 """
@@ -14,24 +14,30 @@ from that check, never from the caller.
 from __future__ import annotations
 
 import io
-import re
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date
-from enum import Enum
 from pathlib import Path
-from typing import IO, TYPE_CHECKING
+from typing import TYPE_CHECKING
 
 from bracegrid._version import __version__
-from bracegrid.bom import Bom, build_bom
-from bracegrid.errors import ExportError, InputError
-from bracegrid.geometry import blocked_bays, opening_polygon
-from bracegrid.layers import Layer, member_layer
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Racking, Supports, Verdict
-from bracegrid.report import CAUTION
-from bracegrid.rigidity import check_frame
-from bracegrid.saving import write_atomic
-from bracegrid.sheet import (
+from bracegrid.analysis import CAUTION, Verdict, check_frame
+from bracegrid.errors import ExportError
+from bracegrid.io import write_bytes_atomic
+from bracegrid.model import (
+    Diagonal,
+    Frame,
+    Member,
+    MemberKind,
+    Project,
+    Racking,
+    Supports,
+    blocked_bays,
+    opening_polygon,
+)
+from bracegrid.outputs.bill import Bom, build_bom
+from bracegrid.outputs.layers import Layer, member_layer
+from bracegrid.outputs.sheet import (
     GAP,
     H_SMALL,
     H_TITLE,
@@ -48,7 +54,7 @@ from bracegrid.sheet import (
     plan_sheet,
     title_size,
 )
-from bracegrid.symbols import (
+from bracegrid.outputs.symbols import (
     BUBBLE_BLOCK,
     BUBBLE_RADIUS,
     CRITICAL_BLOCK,
@@ -65,7 +71,7 @@ if TYPE_CHECKING:
     from ezdxf.document import Drawing
     from ezdxf.layouts.layout import Modelspace
 
-#: DXF version written (AutoCAD 2013 format).
+#: DXF version written: R2013 (AC1027).
 DXF_VERSION = "R2013"
 #: Unit of the model space: millimetres.
 DXF_UNIT = "mm"
@@ -98,7 +104,6 @@ def plan_frame(frame: Frame) -> FrameSheet:
     """Check a frame and collect what its drawing shows.
 
     Example:
-        >>> from bracegrid.model import Frame
         >>> plan_frame(Frame("f", (3000,), (2000,))).verdict.stable
         False
     """
@@ -165,7 +170,6 @@ def member_endpoints(frame: Frame, m: Member) -> tuple[tuple[float, float], tupl
     """Start and end of a member as drawn, frame mm (rising: bottom-left first; falling: top-left first).
 
     Example:
-        >>> from bracegrid.model import Frame, Member, MemberKind, Diagonal
         >>> member_endpoints(Frame("f", (3000,), (2000,)), Member(1, 1, MemberKind.TIE, Diagonal.FALLING))
         ((0, 2000), (3000, 0))
     """
@@ -333,7 +337,6 @@ def build_drawing(project: Project, *, frames: Sequence[Frame] | None = None, wh
         The document with the plan, the verdicts and the bill.
 
     Example:
-        >>> from bracegrid.model import Frame, Project
         >>> sheet = build_drawing(Project("p", (Frame("f", (3000,), (2000,)),)))
         >>> sheet.doc.header["$INSUNITS"], sheet.plan.sheet
         (4, 'A3')
@@ -399,160 +402,4 @@ def write_dxf(doc: Drawing, path: str | Path) -> Path:
     except Exception as exc:
         msg = f"cannot serialise the drawing for {path}: {exc}"
         raise ExportError(msg) from exc
-
-    def write(handle: IO[bytes]) -> None:
-        handle.write(data)
-
-    return write_atomic(path, write)
-
-
-class OutputFormat(Enum):
-    """File formats ``bracegrid draw`` can write (the bill CSV is always written)."""
-
-    DXF = "dxf"
-    SVG = "svg"
-    PNG = "png"
-    PDF = "pdf"
-
-
-def parse_formats(text: str) -> tuple[OutputFormat, ...]:
-    """Read a comma-separated format list such as ``"dxf,png"``.
-
-    Raises:
-        InputError: Naming every unknown format and the known ones.
-
-    Example:
-        >>> [f.value for f in parse_formats("dxf, PNG")]
-        ['dxf', 'png']
-    """
-    known = [f.value for f in OutputFormat]
-    chosen: list[OutputFormat] = []
-    bad: list[str] = []
-    for raw in text.split(","):
-        item = raw.strip().lower().lstrip(".")
-        if not item:
-            continue
-        if item not in known:
-            bad.append(item)
-        elif OutputFormat(item) not in chosen:
-            chosen.append(OutputFormat(item))
-    if bad or not chosen:
-        what = f"unknown format {', '.join(repr(b) for b in bad)}" if bad else "no format given"
-        msg = f"--format {text!r}: {what}; choose from {', '.join(known)} separated by commas (e.g. dxf,png)"
-        raise InputError(msg)
-    return tuple(chosen)
-
-
-def file_slug(name: str) -> str:
-    """A file-name-safe form of a frame or project name.
-
-    Example:
-        >>> file_slug("West end frame #2")
-        'west-end-frame-2'
-    """
-    slug = re.sub(r"[^a-z0-9]+", "-", name.lower()).strip("-")
-    return slug or "frame"
-
-
-@dataclass(frozen=True, slots=True)
-class OutputFile:
-    """One file ``bracegrid draw`` writes.
-
-    Attributes:
-        name: File name (no folder).
-        data: Its full contents.
-    """
-
-    name: str
-    data: bytes
-
-
-def render_outputs(
-    project: Project,
-    *,
-    stem: str,
-    frames: Sequence[Frame] | None = None,
-    formats: Sequence[OutputFormat] = (OutputFormat.DXF, OutputFormat.PNG),
-    per_frame: bool = False,
-    when: date | None = None,
-    dpi: int = 150,
-) -> tuple[tuple[DrawnSheet, ...], tuple[OutputFile, ...]]:
-    """Render every file of a ``draw`` run in memory (nothing is written here).
-
-    Args:
-        project: The project.
-        stem: Base of the file names.
-        frames: Frames to draw (default: all).
-        formats: Drawing and preview formats.
-        per_frame: One sheet per frame instead of one for all.
-        when: Title-block date (default: today).
-        dpi: PNG resolution.
-
-    Returns:
-        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet and
-        ``<stem>-bom.csv`` for the frames drawn.
-    """
-    from bracegrid.bom import render_bom_csv
-    from bracegrid.preview import PreviewFormat, render_preview
-
-    chosen = tuple(project.frames if frames is None else frames)
-    groups: list[tuple[str, tuple[Frame, ...]]]
-    if per_frame:
-        used: set[str] = set()
-        groups = []
-        for f in chosen:
-            name, k = f"{stem}-{file_slug(f.name)}", 2
-            while name in used:
-                name, k = f"{stem}-{file_slug(f.name)}-{k}", k + 1
-            used.add(name)
-            groups.append((name, (f,)))
-    else:
-        groups = [(stem, chosen)]
-    sheets: list[DrawnSheet] = []
-    files: list[OutputFile] = []
-    for base, group in groups:
-        sheet = build_drawing(project, frames=group, when=when)
-        sheets.append(sheet)
-        for fmt in formats:
-            if fmt is OutputFormat.DXF:
-                files.append(OutputFile(f"{base}.dxf", dxf_bytes(sheet.doc)))
-            else:
-                files.append(
-                    OutputFile(f"{base}.{fmt.value}", render_preview(sheet, PreviewFormat(fmt.value), dpi=dpi))
-                )
-    bom = build_bom(project, frames=chosen)
-    files.append(OutputFile(f"{stem}-bom.csv", render_bom_csv(bom).encode("utf-8")))
-    return tuple(sheets), tuple(files)
-
-
-def check_out_folder(folder: str | Path) -> Path:
-    """The output folder, if it can be one (it may not exist yet).
-
-    Raises:
-        ExportError: If the path exists and is not a folder.
-    """
-    out = Path(folder)
-    if out.exists() and not out.is_dir():
-        msg = f"--out {out}: exists and is not a folder; give a folder path"
-        raise ExportError(msg)
-    return out
-
-
-def write_outputs(folder: str | Path, files: Sequence[OutputFile]) -> tuple[Path, ...]:
-    """Write rendered files into a folder, each atomically.
-
-    Raises:
-        ExportError: If the folder or a file cannot be written.
-    """
-    out = check_out_folder(folder)
-    written = []
-    for item in files:
-        written.append(write_atomic(out / item.name, _writer(item.data)))
-    return tuple(written)
-
-
-def _writer(data: bytes) -> Callable[[IO[bytes]], None]:
-    def write(handle: IO[bytes]) -> None:
-        handle.write(data)
-
-    return write
+    return write_bytes_atomic(path, data)

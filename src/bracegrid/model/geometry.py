@@ -1,4 +1,4 @@
-"""Shapely work: bay rectangles, openings, and the bays openings block."""
+"""Geometry (shapely): bay rectangles, opening polygons and the bays openings block."""
 
 from __future__ import annotations
 
@@ -6,7 +6,7 @@ from bisect import bisect_left, bisect_right
 
 from shapely.geometry import Polygon, box
 
-from bracegrid.model import Frame, Opening
+from bracegrid.model.frame import Frame, Opening
 
 
 def bay_box(frame: Frame, row: int, col: int) -> Polygon:

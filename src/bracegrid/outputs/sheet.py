@@ -1,4 +1,4 @@
-"""Laying frames out on one sheet, and the sheet's legend, bill table and title block.
+"""The sheet: frames laid out on one sheet, and the sheet's legend, bill table and title block.
 
 Everything is placed in paper millimetres and multiplied by the drawing scale
 when written, so the model space holds the frames at true size (millimetres)
@@ -12,9 +12,9 @@ from dataclasses import dataclass
 from datetime import date
 from typing import TYPE_CHECKING, Any
 
-from bracegrid.bom import Bom, BomTotals
-from bracegrid.layers import Layer, member_layer
-from bracegrid.symbols import (
+from bracegrid.outputs.bill import Bom, BomTotals
+from bracegrid.outputs.layers import Layer, member_layer
+from bracegrid.outputs.symbols import (
     BUBBLE_BLOCK,
     CRITICAL_BLOCK,
     SUPPORT_BLOCK,

@@ -1,4 +1,4 @@
-"""A hand-drawn style layout to cost the optimizer against.
+"""The rule-of-thumb baseline: a hand-drawn style layout to cost the optimizer against.
 
 The rule (common practice, no source): a rigid brace in every row (lift) at a
 fixed bay interval, starting from the left end, with successive braces in a
@@ -14,8 +14,7 @@ report it as drawn.
 
 from __future__ import annotations
 
-from bracegrid.geometry import blocked_bays
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
+from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports, blocked_bays
 
 #: Default bay interval between braces in a row (common practice, no source).
 DEFAULT_INTERVAL = 5
@@ -54,7 +53,7 @@ def rule_of_thumb_layout(frame: Frame, *, interval: int = DEFAULT_INTERVAL) -> t
         Existing members, then the added ones (``existing=False``).
 
     Example:
-        >>> from bracegrid.model import Frame, Supports
+        >>> from bracegrid.model import Supports
         >>> f = Frame("f", (2500,) * 7, (2000,) * 2, supports=Supports.BASE)
         >>> [(m.row, m.col, m.diagonal.value) for m in rule_of_thumb_layout(f)]
         [(1, 1, 'rising'), (1, 6, 'falling'), (2, 1, 'rising'), (2, 6, 'falling')]

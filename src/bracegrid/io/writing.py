@@ -1,16 +1,13 @@
-"""Project -> TOML text, and atomic file writing shared by every writer."""
+"""Writing project files: a :class:`~bracegrid.model.Project` -> TOML text, saved atomically."""
 
 from __future__ import annotations
 
-import os
-import tempfile
-from collections.abc import Callable
 from pathlib import Path
-from typing import IO, Any
+from typing import Any
 
 import tomli_w
 
-from bracegrid.errors import ExportError
+from bracegrid.io.atomic import write_text_atomic
 from bracegrid.model import CostRate, Frame, Project
 from bracegrid.units import MM_PER_UNIT
 
@@ -61,7 +58,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
 
 
 def render_project(project: Project) -> str:
-    """The project as TOML text that :func:`bracegrid.loading.parse_project` reads back.
+    """The project as TOML text that :func:`bracegrid.io.reading.parse_project` reads back.
 
     Example:
         >>> from bracegrid.model import Frame, Project
@@ -77,57 +74,6 @@ def render_project(project: Project) -> str:
         head["length_unit"] = project.length_unit
     doc = {"project": head, "costs": costs, "frame": [_frame(f, project.length_unit) for f in project.frames]}
     return tomli_w.dumps(doc)
-
-
-def _umask() -> int:
-    current = os.umask(0)
-    os.umask(current)
-    return current
-
-
-def write_atomic(path: str | Path, write: Callable[[IO[bytes]], None]) -> Path:
-    """Write a file through a temporary file in the same folder, then rename.
-
-    Either the whole file appears or nothing does: a failure part-way leaves
-    any older file at ``path`` untouched.
-
-    Args:
-        path: Destination.
-        write: Called with the open binary temporary file.
-
-    Returns:
-        The destination path.
-
-    Raises:
-        ExportError: If the folder cannot be written or ``write`` fails with OSError.
-    """
-    dest = Path(path)
-    tmp_name = ""
-    try:
-        dest.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".part", dir=dest.parent)
-        with os.fdopen(fd, "wb") as handle:
-            write(handle)
-        os.chmod(tmp_name, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
-        os.replace(tmp_name, dest)
-        tmp_name = ""
-    except OSError as exc:
-        msg = f"cannot write {dest}: {exc.strerror or exc}; check the folder exists and is writable"
-        raise ExportError(msg) from None
-    finally:
-        if tmp_name and os.path.exists(tmp_name):
-            os.unlink(tmp_name)
-    return dest
-
-
-def write_text_atomic(path: str | Path, text: str) -> Path:
-    """Write UTF-8 text atomically (see :func:`write_atomic`)."""
-    data = text.encode("utf-8")
-
-    def put(handle: IO[bytes]) -> None:
-        handle.write(data)
-
-    return write_atomic(path, put)
 
 
 def save_project(project: Project, path: str | Path) -> Path:

@@ -1,0 +1,94 @@
+"""Explanations in plain words: loose parts, their racking sense, redundancy, and the caution text.
+
+Shared by every output (text, JSON, drawings, the HTML report) and by the optimizer's
+reasons for infeasible requests, so the same situation is always worded the same way.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Sequence
+
+from bracegrid.analysis.verdict import LoosePart, Verdict
+from bracegrid.model import Racking, Supports
+
+#: The caution every report, drawing title block and the README carries.
+CAUTION = (
+    "bracegrid proves only that the layout leaves no mechanism (first-order, pin-jointed, "
+    "ties taut). Member sizing, connections, foundations, loads and code compliance rest "
+    "with a licensed engineer and the local codes."
+)
+
+
+def format_numbers(values: Iterable[int]) -> str:
+    """Compress sorted numbers into ranges.
+
+    Example:
+        >>> format_numbers([1, 2, 3, 5, 7, 8])
+        '1-3, 5, 7-8'
+    """
+    items = sorted(set(values))
+    spans: list[str] = []
+    start = prev = None
+    for v in items:
+        if start is None:
+            start = prev = v
+        elif prev is not None and v == prev + 1:
+            prev = v
+        else:
+            spans.append(f"{start}" if start == prev else f"{start}-{prev}")
+            start = prev = v
+    if start is not None:
+        spans.append(f"{start}" if start == prev else f"{start}-{prev}")
+    return ", ".join(spans)
+
+
+def _who(rows: Sequence[int], columns: Sequence[int]) -> str:
+    parts = []
+    if rows:
+        parts.append(f"row{'s' if len(rows) > 1 else ''} {format_numbers(rows)}")
+    if columns:
+        parts.append(f"column{'s' if len(columns) > 1 else ''} {format_numbers(columns)}")
+    return " with ".join(parts) if parts else "nothing"
+
+
+def anchor_words(verdict: Verdict) -> str:
+    """What loose parts move relative to."""
+    if verdict.supports is Supports.BASE:
+        return "the pinned base"
+    return f"the part holding {_who(verdict.anchor_rows, verdict.anchor_columns)}"
+
+
+def describe_part(part: LoosePart, anchor: str) -> str:
+    """One loose part in plain words.
+
+    Example:
+        >>> describe_part(LoosePart((3, 4), (), Racking.CLOCKWISE), "the pinned base").split(";")[0]
+        'rows 3-4 can rack clockwise only (tops sway right) relative to the pinned base'
+    """
+    who = _who(part.rows, part.columns)
+    if part.racking is Racking.BOTH:
+        return f"{who} can rack both ways relative to {anchor}: no member ties it to the rest"
+    if part.racking is Racking.CLOCKWISE:
+        hint = "tops sway right" if part.rows else "right side drops"
+    else:
+        hint = "tops sway left" if part.rows else "right side rises"
+    return (
+        f"{who} can rack {part.racking.value} only ({hint}) relative to {anchor}; "
+        "a tie or brace must stop the other sense too"
+    )
+
+
+def redundancy_words(k: int) -> str:
+    """A layout's redundancy in plain words.
+
+    Example:
+        >>> redundancy_words(1)
+        'survives the loss of any one member'
+        >>> redundancy_words(2)
+        'survives the loss of any 2 members'
+    """
+    if k < 0:
+        return "not stable"
+    if k == 0:
+        return "a single member loss can leave a mechanism"
+    return "survives the loss of any one member" if k == 1 else f"survives the loss of any {k} members"

@@ -1,0 +1,28 @@
+"""The input/output stage: project files read and written, member references, atomic writes."""
+
+from bracegrid.io.atomic import (
+    OutputFile,
+    check_out_folder,
+    write_atomic,
+    write_bytes_atomic,
+    write_outputs,
+    write_text_atomic,
+)
+from bracegrid.io.reading import load_project, parse_project
+from bracegrid.io.refs import MEMBER_REF_HELP, parse_member_refs
+from bracegrid.io.writing import render_project, save_project
+
+__all__ = [
+    "MEMBER_REF_HELP",
+    "OutputFile",
+    "check_out_folder",
+    "load_project",
+    "parse_member_refs",
+    "parse_project",
+    "render_project",
+    "save_project",
+    "write_atomic",
+    "write_bytes_atomic",
+    "write_outputs",
+    "write_text_atomic",
+]

@@ -1,0 +1,118 @@
+"""The output bundle of ``bracegrid draw``: every sheet and preview and the bill, rendered in memory."""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+from datetime import date
+from enum import Enum
+
+from bracegrid.errors import InputError
+from bracegrid.io import OutputFile
+from bracegrid.model import Frame, Project
+from bracegrid.outputs.bill import build_bom, render_bom_csv
+from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes
+from bracegrid.outputs.preview import PreviewFormat, render_preview
+
+
+class OutputFormat(Enum):
+    """File formats ``bracegrid draw`` can write (the bill CSV is always written)."""
+
+    DXF = "dxf"
+    SVG = "svg"
+    PNG = "png"
+    PDF = "pdf"
+
+
+def parse_formats(text: str) -> tuple[OutputFormat, ...]:
+    """Read a comma-separated format list such as ``"dxf,png"``.
+
+    Raises:
+        InputError: Naming every unknown format and the known ones.
+
+    Example:
+        >>> [f.value for f in parse_formats("dxf, PNG")]
+        ['dxf', 'png']
+    """
+    known = [f.value for f in OutputFormat]
+    chosen: list[OutputFormat] = []
+    bad: list[str] = []
+    for raw in text.split(","):
+        item = raw.strip().lower().lstrip(".")
+        if not item:
+            continue
+        if item not in known:
+            bad.append(item)
+        elif OutputFormat(item) not in chosen:
+            chosen.append(OutputFormat(item))
+    if bad or not chosen:
+        what = f"unknown format {', '.join(repr(b) for b in bad)}" if bad else "no format given"
+        msg = f"{text!r}: {what}; choose from {', '.join(known)} separated by commas (e.g. dxf,png)"
+        raise InputError(msg)
+    return tuple(chosen)
+
+
+def file_slug(name: str) -> str:
+    """A file-name-safe form of a frame or project name.
+
+    Example:
+        >>> file_slug("West end frame #2")
+        'west-end-frame-2'
+    """
+    slug = re.sub(r"[^a-z0-9]+", "-", name.lower()).strip("-")
+    return slug or "frame"
+
+
+def render_outputs(
+    project: Project,
+    *,
+    stem: str,
+    frames: Sequence[Frame] | None = None,
+    formats: Sequence[OutputFormat] = (OutputFormat.DXF, OutputFormat.PNG),
+    per_frame: bool = False,
+    when: date | None = None,
+    dpi: int = 150,
+) -> tuple[tuple[DrawnSheet, ...], tuple[OutputFile, ...]]:
+    """Render every file of a ``draw`` run in memory (nothing is written here).
+
+    Args:
+        project: The project.
+        stem: Base of the file names.
+        frames: Frames to draw (default: all).
+        formats: Drawing and preview formats.
+        per_frame: One sheet per frame instead of one for all.
+        when: Title-block date (default: today).
+        dpi: PNG resolution.
+
+    Returns:
+        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet and
+        ``<stem>-bom.csv`` for the frames drawn.
+    """
+    chosen = tuple(project.frames if frames is None else frames)
+    groups: list[tuple[str, tuple[Frame, ...]]]
+    if per_frame:
+        used: set[str] = set()
+        groups = []
+        for f in chosen:
+            name, k = f"{stem}-{file_slug(f.name)}", 2
+            while name in used:
+                name, k = f"{stem}-{file_slug(f.name)}-{k}", k + 1
+            used.add(name)
+            groups.append((name, (f,)))
+    else:
+        groups = [(stem, chosen)]
+    sheets: list[DrawnSheet] = []
+    files: list[OutputFile] = []
+    for base, group in groups:
+        sheet = build_drawing(project, frames=group, when=when)
+        sheets.append(sheet)
+        for fmt in formats:
+            if fmt is OutputFormat.DXF:
+                files.append(OutputFile(f"{base}.dxf", dxf_bytes(sheet.doc)))
+            else:
+                files.append(
+                    OutputFile(f"{base}.{fmt.value}", render_preview(sheet, PreviewFormat(fmt.value), dpi=dpi))
+                )
+    bom = build_bom(project, frames=chosen)
+    files.append(OutputFile(f"{stem}-bom.csv", render_bom_csv(bom).encode("utf-8")))
+    return tuple(sheets), tuple(files)

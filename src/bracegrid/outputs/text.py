@@ -1,0 +1,168 @@
+"""Text and CSV rendering of results for people at a terminal. Returns strings; never prints."""
+
+from __future__ import annotations
+
+import csv
+import io
+from collections.abc import Sequence
+
+from rich.console import Console
+from rich.table import Table
+
+from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part, redundancy_words
+from bracegrid.compare import Comparison, StrategyKey
+from bracegrid.model import Member
+from bracegrid.optimize import ProgressEvent, ProjectSolution
+from bracegrid.outputs.shapes import compare_rows, solution_counts
+
+
+def render_table(table: Table, *, width: int = 110) -> str:
+    """Render a rich table to plain text."""
+    buffer = io.StringIO()
+    Console(file=buffer, width=width, color_system=None, force_terminal=False).print(table)
+    return buffer.getvalue()
+
+
+def _members_text(members: Sequence[Member], *, limit: int = 12) -> str:
+    labels = [f"{m.kind.value} {m.label}" for m in members[:limit]]
+    more = f" ... and {len(members) - limit} more" if len(members) > limit else ""
+    return ", ".join(labels) + more
+
+
+def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
+    """Human-readable result of ``bracegrid check``."""
+    table = Table(title=f"Stability check: {project_name}", title_justify="left")
+    for head in ("frame", "verdict", "racking modes", "braces", "ties", "braces + ties/2", "critical"):
+        table.add_column(head, justify="left" if head in {"frame", "verdict"} else "right")
+    for v in verdicts:
+        table.add_row(
+            v.frame,
+            "STABLE" if v.stable else "NOT STABLE",
+            str(v.racking_modes),
+            str(v.braces),
+            str(v.ties),
+            f"{v.maxwell_count:g} / {v.maxwell_needed}",
+            str(len(v.critical_members)),
+        )
+    lines = [render_table(table)]
+    for v in verdicts:
+        if v.removed:
+            lines.append(f"{v.frame}: checked without {_members_text(v.removed)}")
+        anchor = anchor_words(v)
+        for part in v.loose_parts:
+            lines.append(f"{v.frame}: {describe_part(part, anchor)}")
+        if v.critical_members:
+            lines.append(f"{v.frame}: critical (single loss makes it unstable): {_members_text(v.critical_members)}")
+    lines.append("")
+    lines.append(f"Caution: {CAUTION}")
+    return "\n".join(lines) + "\n"
+
+
+def render_optimize(project_name: str, solution: ProjectSolution) -> str:
+    """Human-readable result of ``bracegrid optimize``.
+
+    Args:
+        project_name: Shown in the title.
+        solution: The project's answer.
+
+    Returns:
+        A table (one row per frame) and notes.
+    """
+    table = Table(title=f"Optimized layout: {project_name}", title_justify="left")
+    heads = ("frame", "status", "braces (new)", "ties (new)", "diagonals m", "cost", "added", "bound", "gap", "time s")
+    for head in heads:
+        table.add_column(head, justify="left" if head in {"frame", "status"} else "right")
+    for s in solution.frames:
+        parts = solution_counts(s)
+        table.add_row(
+            s.frame.name,
+            s.status.value.upper(),
+            f"{parts['braces']} ({parts['new_braces']})",
+            f"{parts['ties']} ({parts['new_ties']})",
+            f"{parts['length_m']:.2f}",
+            f"{s.cost:.2f}",
+            f"{s.added_cost:.2f}",
+            f"{s.bound:.2f}",
+            f"{100 * s.gap:.2f}%",
+            f"{s.seconds:.2f}",
+        )
+    lines = [render_table(table, width=130)]
+    lines.append(f"Total cost {solution.cost:.2f} (added {solution.added_cost:.2f}).")
+    for s in solution.frames:
+        new = [m for m in s.members if not m.existing]
+        if s.verdict.removed:
+            lines.append(f"{s.frame.name}: repaired without {_members_text(s.verdict.removed)}")
+        lines.append(f"{s.frame.name}: {s.method_text}; {redundancy_words(s.redundancy)}")
+        if new:
+            lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")
+        if s.verdict.critical_members:
+            lines.append(
+                f"{s.frame.name}: critical (single loss makes it unstable): {len(s.verdict.critical_members)} member(s)"
+            )
+    lines.append("")
+    lines.append(f"Caution: {CAUTION}")
+    return "\n".join(lines) + "\n"
+
+
+def progress_line(event: ProgressEvent) -> str:
+    """One live status line from an optimizer progress event.
+
+    Example:
+        >>> progress_line(ProgressEvent(frame="f", cost=10.0, bound=9.5, gap=0.05, seconds=1.25, stage="CP-SAT"))
+        'f: best 10.00  bound 9.50  gap 5.00%  1.2 s  CP-SAT'
+    """
+    best = "-" if event.cost is None else f"{event.cost:.2f}"
+    gap = "-" if event.gap is None else f"{100 * event.gap:.2f}%"
+    return f"{event.frame}: best {best}  bound {event.bound:.2f}  gap {gap}  {event.seconds:.1f} s  {event.stage}"
+
+
+def render_compare_csv(comparison: Comparison) -> str:
+    """The comparison table as CSV (one row per frame and strategy)."""
+    rows = compare_rows(comparison)
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=list(rows[0]) if rows else ["frame"], lineterminator="\n")
+    writer.writeheader()
+    for row in rows:
+        writer.writerow({k: "" if v is None else v for k, v in row.items()})
+    return buffer.getvalue()
+
+
+def render_compare(comparison: Comparison) -> str:
+    """Human-readable comparison tables, one per frame."""
+    lines = []
+    for fc in comparison.frames:
+        table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
+        for head in ("strategy", "status", "braces", "ties", "length m", "cost", "saving", "stable",
+                     "critical", "survives", "gap", "time s"):  # fmt: skip
+            left = head in {"strategy", "status"}
+            table.add_column(head, justify="left" if left else "right", no_wrap=left)
+        for s in fc.strategies:
+            saving = fc.saving(s.key)
+            table.add_row(
+                s.key.value,
+                s.status.value,
+                str(s.braces),
+                str(s.ties),
+                f"{s.length_mm / 1000:.2f}",
+                "-" if s.cost is None else f"{s.cost:.2f}",
+                "-" if saving is None else f"{saving:.2f}",
+                "yes" if s.stable else "NO",
+                str(s.critical),
+                "-" if s.redundancy < 0 else f"{s.redundancy}",
+                "-" if s.gap is None else f"{100 * s.gap:.2f}%",
+                f"{s.seconds:.2f}",
+            )
+        lines.append(render_table(table, width=130))
+        for s in fc.strategies:
+            if s.note:
+                lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
+        lines.append("")
+    if len(comparison.frames) > 1:
+        parts = []
+        for key in StrategyKey:
+            total = comparison.total(key)
+            parts.append(f"{key.value} {'-' if total is None else f'{total:.2f}'}")
+        lines.append("All frames: " + ", ".join(parts))
+    lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
+    lines.append(f"Caution: {CAUTION}")
+    return "\n".join(lines) + "\n"
