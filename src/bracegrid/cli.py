@@ -10,11 +10,42 @@ import argparse
 import json
 import sys
 from collections.abc import Callable, Sequence
+from datetime import date
+from pathlib import Path
 from typing import Any, TextIO, TypeVar
 
+from rich.progress import Progress
+
 from bracegrid._version import __version__
+from bracegrid.analysis import CAUTION, check_frame
+from bracegrid.compare import StrategyKey, compare_project
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
+from bracegrid.io import (
+    MEMBER_REF_HELP,
+    OutputFile,
+    check_out_folder,
+    load_project,
+    parse_member_refs,
+    save_project,
+    write_outputs,
+)
 from bracegrid.model import Frame, MemberKind, Project
+from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
+from bracegrid.outputs import (
+    build_drawing,
+    check_dict,
+    compare_dict,
+    dxf_bytes,
+    optimize_dict,
+    parse_formats,
+    progress_line,
+    render_check,
+    render_compare,
+    render_compare_csv,
+    render_html,
+    render_optimize,
+    render_outputs,
+)
 
 _T = TypeVar("_T")
 
@@ -70,10 +101,6 @@ def _emit(out: TextIO, payload: dict[str, Any]) -> None:
 
 
 def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
-    from bracegrid.analysis import check_frame
-    from bracegrid.io import load_project, parse_member_refs
-    from bracegrid.outputs import check_dict, render_check
-
     project = load_project(args.project)
     target = _without_frame(project, args)
     taken = _flagged("--without", lambda: parse_member_refs(target, args.without)) if target is not None else ()
@@ -92,13 +119,6 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
 
 
 def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
-    from datetime import date
-    from pathlib import Path
-
-    from bracegrid.analysis import CAUTION
-    from bracegrid.io import check_out_folder, load_project, write_outputs
-    from bracegrid.outputs import parse_formats, render_outputs
-
     formats = _flagged("--format", lambda: parse_formats(args.format))
     project = load_project(args.project)
     frames = _frames(project, args.frame)
@@ -135,10 +155,6 @@ def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
 
 
 def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
-    from bracegrid.io import load_project, parse_member_refs, save_project
-    from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
-    from bracegrid.outputs import optimize_dict, progress_line, render_optimize
-
     problems = _solver_problems(args)
     if args.redundancy is not None and args.redundancy < 0:
         problems.append(f"--redundancy {args.redundancy}: give 0 (stable) or more (members that may be lost)")
@@ -207,23 +223,6 @@ def _add_solver_options(p: argparse.ArgumentParser, *, per: str) -> None:
 
 
 def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
-    from datetime import date
-    from pathlib import Path
-
-    from rich.progress import Progress
-
-    from bracegrid.compare import StrategyKey, compare_project
-    from bracegrid.io import OutputFile, check_out_folder, load_project, write_outputs
-    from bracegrid.optimize import SolveOptions
-    from bracegrid.outputs import (
-        build_drawing,
-        compare_dict,
-        dxf_bytes,
-        render_compare,
-        render_compare_csv,
-        render_html,
-    )
-
     problems = _solver_problems(args)
     if problems:
         raise InputError(problems)
@@ -273,8 +272,6 @@ def _add_common(p: argparse.ArgumentParser) -> None:
 
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser with every sub-command."""
-    from bracegrid.io import MEMBER_REF_HELP
-
     parser = argparse.ArgumentParser(
         prog="bracegrid",
         description="Lay out and check diagonal bracing of rectangular pin-jointed frames.",

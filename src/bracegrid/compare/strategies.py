@@ -7,7 +7,7 @@ Five strategies per frame, each re-verified by the stability check:
 3. ``mixed``: the optimizer's free choice of braces and ties;
 4. ``mixed-redundant``: mixed, and stable after the loss of any one member
    (or of the frame's own ``redundancy`` if that is higher);
-5. ``baseline``: the rule-of-thumb layout of :mod:`bracegrid.baseline`
+5. ``baseline``: the rule-of-thumb layout of :mod:`bracegrid.compare.baseline`
    (common practice, no source), repaired at least cost when it leaves a
    mechanism, and reported as drawn plus the repair.
 

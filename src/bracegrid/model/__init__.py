@@ -1,7 +1,7 @@
 """The model stage: frozen value types of frames, members, openings, supports and prices."""
 
-from bracegrid.model.costs import CostCatalogue, CostRate, layout_cost
-from bracegrid.model.frame import Frame, Member, Opening, Project
+from bracegrid.model.costs import CostCatalogue, CostRate
+from bracegrid.model.frame import Frame, Member, Opening, Project, layout_cost
 from bracegrid.model.geometry import bay_box, bays_blocked_by, blocked_bays, opening_polygon
 from bracegrid.model.kinds import Diagonal, MemberKind, Racking, Supports
 

@@ -1,15 +1,10 @@
-"""Member prices: the cost catalogue of a project and the price of a layout."""
+"""Member prices: the cost catalogue of a project."""
 
 from __future__ import annotations
 
-from collections.abc import Iterable
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
 
 from bracegrid.model.kinds import MemberKind
-
-if TYPE_CHECKING:
-    from bracegrid.model.frame import Frame, Member
 
 
 @dataclass(frozen=True, slots=True)
@@ -55,15 +50,3 @@ class CostCatalogue:
         r = self.rate(kind)
         base = r.per_piece + r.labour_per_piece + r.per_metre * length_mm / 1000.0
         return base * (1.0 + self.contingency_pct / 100.0)
-
-
-def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -> float:
-    """Price of every member of a layout, from the exact member prices, rounded to cents.
-
-    Example:
-        >>> from bracegrid.model import Diagonal, Frame, Member
-        >>> f = Frame("f", (3000,), (4000,))
-        >>> layout_cost(f, CostCatalogue(), [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
-        65.0
-    """
-    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)

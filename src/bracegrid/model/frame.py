@@ -1,4 +1,4 @@
-"""Frozen value types of a frame: members, openings, the frame itself and the project.
+"""Frozen value types of a frame: members, openings, the frame itself, the project, and a layout's price.
 
 Conventions (see docs/theory.md): rows are numbered 1..R from the bottom,
 columns 1..C from the left; lengths are whole millimetres; the rising diagonal
@@ -7,6 +7,7 @@ runs from a bay's bottom-left to its top-right corner.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
 
 from bracegrid.model.costs import CostCatalogue
@@ -72,7 +73,7 @@ class Frame:
         heights: Row heights in mm, bottom to top.
         supports: How the frame is held.
         blocked: Bays (row, col) listed as blocked in the file; openings may
-            block more (see :func:`bracegrid.geometry.blocked_bays`).
+            block more (see :func:`bracegrid.model.geometry.blocked_bays`).
         openings: Clear zones.
         allow: Member kinds the optimizer may add.
         members: Members in place.
@@ -159,3 +160,15 @@ class Project:
             if f.name == name:
                 return f
         raise KeyError(name)
+
+
+def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -> float:
+    """Price of every member of a layout, from the exact member prices, rounded to cents.
+
+    Example:
+        >>> from bracegrid.model import Diagonal
+        >>> f = Frame("f", (3000,), (4000,))
+        >>> layout_cost(f, CostCatalogue(), [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
+        65.0
+    """
+    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)

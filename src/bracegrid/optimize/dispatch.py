@@ -28,7 +28,6 @@ from dataclasses import dataclass
 from bracegrid.analysis import check_layout, redundancy_of
 from bracegrid.errors import InfeasibleError, InputError, SolverLimitError
 from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, layout_cost
-from bracegrid.optimize import shortcuts, warmstart
 from bracegrid.optimize.bays import Additions, BayTable, bay_table, money
 from bracegrid.optimize.cutloop import LoopReport, solve_with_cuts
 from bracegrid.optimize.diagnosis import infeasible_reasons
@@ -41,6 +40,14 @@ from bracegrid.optimize.results import (
     SolveMethod,
     SolveOptions,
     SolveStatus,
+)
+from bracegrid.optimize.shortcuts import closed_form, existing_is_symmetric, pinned_base_rows, spanning_tree_braces
+from bracegrid.optimize.warmstart import (
+    constructive,
+    constructive_redundant,
+    pattern_starts,
+    prune,
+    redundant_pattern_starts,
 )
 
 Progress = Callable[[ProgressEvent], None]
@@ -134,16 +141,16 @@ def _solve(
         report("kept members suffice", 0, 0)
         return _Found(Additions.empty(table.rows, table.cols), 0, True, SolveMethod.KEPT)
     if frame.supports is Supports.BASE:
-        got = shortcuts.pinned_base_rows(table, k=k)
+        got = pinned_base_rows(table, k=k)
         if got is None:  # pragma: no cover - ruled out by the feasibility check
             msg = f"frame {frame.name!r}: no layout found"
             raise SolverLimitError(msg)
     else:
         got = None
-        if k == 0 and MemberKind.TIE not in allow and shortcuts.existing_is_symmetric(table):
-            got = shortcuts.spanning_tree_braces(table)
+        if k == 0 and MemberKind.TIE not in allow and existing_is_symmetric(table):
+            got = spanning_tree_braces(table)
         if got is None and k == 0:
-            got = shortcuts.closed_form(table)
+            got = closed_form(table)
     if got is not None:
         cost = got.additions.cost(table)
         report(got.words, cost, cost)
@@ -170,25 +177,25 @@ def _solve_cp(
     start_time = time.monotonic()
     improve: Callable[[Additions], Additions | None]
     if k == 0:
-        improve = lambda a: warmstart.constructive(table, a)  # noqa: E731
+        improve = lambda a: constructive(table, a)  # noqa: E731
         tries = 12 if table.rows * table.cols <= 2500 else 2
         budget = start_time + 0.1 * max(0.0, deadline - start_time)
         starts = [
-            warmstart.constructive(table),
-            warmstart.pattern_starts(table, tries=tries, seed=options.seed, deadline=budget),
+            constructive(table),
+            pattern_starts(table, tries=tries, seed=options.seed, deadline=budget),
         ]
-        if MemberKind.BRACE in allow and shortcuts.existing_is_symmetric(table):
-            tree = shortcuts.spanning_tree_braces(table)
+        if MemberKind.BRACE in allow and existing_is_symmetric(table):
+            tree = spanning_tree_braces(table)
             if tree is not None:
-                starts.append(warmstart.prune(table, tree.additions))
+                starts.append(prune(table, tree.additions))
     else:
-        improve = lambda a: warmstart.constructive_redundant(table, a, k, deadline=deadline)  # noqa: E731
+        improve = lambda a: constructive_redundant(table, a, k, deadline=deadline)  # noqa: E731
         budget = start_time + 0.1 * max(0.0, deadline - start_time)
         # Walk starts pay off on small or uniform frames; on large random ones they only eat time.
         walks = 3 if table.rows * table.cols <= 600 or _uniform(table) else 0
         starts = [
-            warmstart.constructive_redundant(table, None, k, deadline=deadline),
-            warmstart.redundant_pattern_starts(table, k, tries=walks, seed=options.seed, deadline=budget),
+            constructive_redundant(table, None, k, deadline=deadline),
+            redundant_pattern_starts(table, k, tries=walks, seed=options.seed, deadline=budget),
         ]
     found = [s for s in starts if s is not None]
     incumbent = min(found, key=lambda a: a.cost(table)) if found else None

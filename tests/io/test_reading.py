@@ -13,7 +13,7 @@ from bracegrid.errors import InputError
 from bracegrid.io import load_project, parse_project, render_project
 from bracegrid.model import Diagonal, MemberKind, Supports
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 GOOD = """
 [project]

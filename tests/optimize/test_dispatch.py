@@ -1,7 +1,7 @@
 """Optimizer behaviour: routes, kept members, infeasibility reasons, bounds, determinism, greedy baseline.
 
 References: stability is judged by the directed-cycle criterion (Baglivo &
-Graver 1983, ch. 10) through bracegrid.rigidity, and every layout is also
+Graver 1983, ch. 10) through bracegrid.analysis, and every layout is also
 checked against the bar framework (tests/physics.py: numpy rank + scipy
 linprog, an independent computation). The greedy baseline below is a simple
 common-practice construction (common practice, no source).
@@ -240,7 +240,7 @@ def test_reported_cost_matches_bill_of_materials_to_the_cent() -> None:
     from bracegrid.io import load_project
     from bracegrid.outputs.bill import build_bom
 
-    project = load_project(Path(__file__).resolve().parents[1] / "projects" / "mill-lane-roof.toml")
+    project = load_project(Path(__file__).resolve().parents[2] / "projects" / "mill-lane-roof.toml")
     sol = optimize_project(project, options=SolveOptions(time_limit=30, workers=1, redundancy=1))
     bom = build_bom(dataclasses.replace(project, frames=tuple(f.frame for f in sol.frames)))
     assert round(bom.totals.cost, 2) == sol.cost == 2919.07

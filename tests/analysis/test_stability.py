@@ -1,4 +1,4 @@
-"""Unit tests of the directed-cycle check (bracegrid.rigidity) on hand-checked frames."""
+"""Unit tests of the directed-cycle check (bracegrid.analysis) on hand-checked frames."""
 
 from __future__ import annotations
 

@@ -174,7 +174,7 @@ def test_totals_over_every_frame() -> None:
     from bracegrid.compare import compare_project
     from bracegrid.io import load_project
 
-    project = load_project(Path(__file__).resolve().parents[1] / "projects" / "quayside-scaffold.toml")
+    project = load_project(Path(__file__).resolve().parents[2] / "projects" / "quayside-scaffold.toml")
     comparison = compare_project(project, options=OPTIONS)
     for key in StrategyKey:
         assert comparison.total(key) == pytest.approx(sum(fc.result(key).cost for fc in comparison.frames))

@@ -88,7 +88,7 @@ def test_version_and_units(case: tuple[DrawnSheet, Drawing]) -> None:
 
 def test_every_layer_defined_and_documented(case: tuple[DrawnSheet, Drawing]) -> None:
     _, doc = case
-    docs = (Path(__file__).resolve().parents[1] / "docs" / "drawings.md").read_text(encoding="utf-8")
+    docs = (Path(__file__).resolve().parents[2] / "docs" / "drawings.md").read_text(encoding="utf-8")
     used = {e.dxf.layer for e in doc.modelspace()}
     for layer in Layer:
         assert layer.layer_name in doc.layers

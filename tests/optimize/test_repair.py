@@ -1,7 +1,7 @@
 """Repairs after taking members out, N-1 options and their CLI.
 
 References: stability by the directed-cycle criterion (Baglivo & Graver 1983,
-ch. 10) via bracegrid.rigidity; the bar-framework reference tests/physics.py
+ch. 10) via bracegrid.analysis; the bar-framework reference tests/physics.py
 (numpy rank + scipy linprog); exhaustive enumeration
 (tests/validation/test_exhaustive_optimize.py) as the independent minimum.
 """
