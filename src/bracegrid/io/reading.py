@@ -37,7 +37,7 @@ from bracegrid.model import (
 from bracegrid.units import MM_PER_UNIT, parse_length
 
 _PROJECT_KEYS = {"name", "length_unit"}
-_COST_KEYS = {"brace", "tie", "contingency_pct"}
+_COST_KEYS = {*(k.value for k in MemberKind), "contingency_pct"}
 _RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"}
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
@@ -147,17 +147,16 @@ def _read_costs(col: _Collector, raw: object) -> CostCatalogue | None:
         return None
     col.unknown_keys("[costs]", table, _COST_KEYS)
     rates: dict[str, CostRate | None] = {}
-    for kind in ("brace", "tie"):
+    for kind in (k.value for k in MemberKind):
         if kind not in table:
             col.add(f"[costs.{kind}]", "missing; add it with per_piece and per_metre (money)")
             rates[kind] = None
         else:
             rates[kind] = _read_rate(col, f"[costs.{kind}]", table[kind])
     contingency = col.number("[costs].contingency_pct", table.get("contingency_pct", 0.0))
-    brace, tie = rates["brace"], rates["tie"]
-    if brace is None or tie is None or contingency is None:
+    if contingency is None or any(r is None for r in rates.values()):
         return None
-    return CostCatalogue(brace=brace, tie=tie, contingency_pct=contingency)
+    return CostCatalogue(**rates, contingency_pct=contingency)  # type: ignore[arg-type]  # None ruled out above
 
 
 def _read_sizes(col: _Collector, where: str, raw: object, unit: str) -> tuple[int, ...] | None:

@@ -8,7 +8,7 @@ from typing import Any
 import tomli_w
 
 from bracegrid.io.atomic import write_text_atomic
-from bracegrid.model import CostRate, Frame, Project
+from bracegrid.model import CostRate, Frame, MemberKind, Project
 from bracegrid.units import MM_PER_UNIT
 
 
@@ -66,7 +66,7 @@ def render_project(project: Project) -> str:
         >>> "widths = [\\n    3,\\n]" in text or "widths = [3]" in text
         True
     """
-    costs: dict[str, Any] = {"brace": _rate(project.costs.brace), "tie": _rate(project.costs.tie)}
+    costs: dict[str, Any] = {k.value: _rate(project.costs.rate(k)) for k in MemberKind}
     if project.costs.contingency_pct:
         costs["contingency_pct"] = project.costs.contingency_pct
     head: dict[str, Any] = {"name": project.name}

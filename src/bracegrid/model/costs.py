@@ -37,8 +37,9 @@ class CostCatalogue:
     contingency_pct: float = 0.0
 
     def rate(self, kind: MemberKind) -> CostRate:
-        """The rate for one member kind."""
-        return self.brace if kind is MemberKind.BRACE else self.tie
+        """The rate for one member kind (the field named after the kind's value)."""
+        rate: CostRate = getattr(self, kind.value)
+        return rate
 
     def member_cost(self, kind: MemberKind, length_mm: float) -> float:
         """Price of one member of the given diagonal length.
