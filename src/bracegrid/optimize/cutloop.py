@@ -20,8 +20,9 @@ import numpy as np
 from bracegrid.analysis.digraph import IntArray
 from bracegrid.optimize.bays import Additions, BayTable
 from bracegrid.optimize.cutmodel import CutModel, ProbeOutcome, collector_for, configure
+from bracegrid.optimize.lprelax import LpPoint, LpRelaxation, fixings
 from bracegrid.optimize.separation import strong_labels, violated_cuts
-from bracegrid.optimize.warmstart import constructive, constructive_redundant
+from bracegrid.optimize.warmstart import constructive, constructive_redundant, prune
 
 
 @dataclass(frozen=True, slots=True)
@@ -34,6 +35,7 @@ class CutSolveResult:
         proven: True when the layout is proven minimal.
         iterations: Solver calls made.
         cuts: Cuts in the final model.
+        lp_rounds: LP solves of the relaxation (0 when the LP stage did not run).
     """
 
     additions: Additions | None
@@ -41,6 +43,7 @@ class CutSolveResult:
     proven: bool
     iterations: int
     cuts: int
+    lp_rounds: int = 0
 
 
 @dataclass(frozen=True, slots=True)
@@ -75,6 +78,7 @@ def solve_with_cuts(
     initial_bound: int = 0,
     lns_rounds: int = 0,
     probe_after: float | None = None,
+    lp_share: float = 0.0,
 ) -> CutSolveResult:
     """Run the lazy-cut loop until proven optimal or the deadline.
 
@@ -94,6 +98,9 @@ def solve_with_cuts(
         probe_after: For k = 0, once this share of the time is gone without a proof, spend up
             to a quarter of the time on one exact search for a layout costing the bound
             (``CutModel.probe``); None = never.
+        lp_share: Share of the time the LP stage may take before the CP-SAT rounds (0 = no LP
+            stage): the LP relaxation with cuts separated on fractional points gives a bound,
+            its dive a layout, its reduced costs fix variables, and its cuts seed the model.
 
     Returns:
         The best layout, a proven lower bound and whether it is optimal.
@@ -110,10 +117,35 @@ def solve_with_cuts(
         bound = best_cost or 0
     cutoff = None
     started = time.monotonic()
+    budget = max(0.0, deadline - started)
+    lp_rounds = 0
+    root: LpPoint | None = None
+    if lp_share > 0 and not proven:
+        root, lp_rounds, found = _lp_stage(table, cm, k, deadline=started + lp_share * budget)
+        if root is not None:
+            bound = max(bound, root.bound)
+        if found is not None:
+            candidate = found if not violated_cuts(table, found, k) else improve(found)
+            if candidate is not None and k == 0:
+                candidate = prune(table, candidate)
+            if candidate is not None and (best_cost is None or candidate.cost(table) < best_cost):
+                best, best_cost = candidate, candidate.cost(table)
+        if best_cost is not None and bound >= best_cost:
+            proven, bound = True, best_cost
+        if on_step is not None:
+            on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
+    fixed_for = None
+
+    def fix_by_reduced_cost() -> None:
+        # Valid for every layout cheaper than the incumbent, which is all the rounds look for.
+        nonlocal fixed_for
+        if root is not None and best_cost is not None and best_cost != fixed_for and not proven:
+            cm.restrict(*fixings(root, cm.columns, best_cost))
+            fixed_for = best_cost
+
     # Window search costs seconds per round: on frames where rounds are quick it only slows
     # the proof, so it waits until 30% of the budget is gone (large frames start at once).
-    lns_from = started if table.rows * table.cols > 600 else started + 0.3 * max(0.0, deadline - started)
-    budget = max(0.0, deadline - started)
+    lns_from = started if table.rows * table.cols > 600 else started + 0.3 * budget
     probe_from = None if probe_after is None or k != 0 else started + probe_after * budget
     while not proven:
         remaining = deadline - time.monotonic()
@@ -136,6 +168,7 @@ def solve_with_cuts(
             continue
         if best is not None:
             cm.hint(best)
+        fix_by_reduced_cost()
         if best_cost is not None and best_cost != cutoff and not isinstance(cm.objective, int):
             # Only strictly cheaper answers are of use: the relaxation then either finds one
             # (a new layout, or new cuts) or proves there is none (the incumbent is optimal).
@@ -197,7 +230,33 @@ def solve_with_cuts(
                 cm.add_cut(s)
         if k == 0 and cuts:
             cm.add_partition(strong_labels(table, relaxed)[1])
-    return CutSolveResult(best, bound, proven, iterations, len(cm.cuts))
+    return CutSolveResult(best, bound, proven, iterations, len(cm.cuts), lp_rounds)
+
+
+def _lp_stage(table: BayTable, cm: CutModel, k: int, *, deadline: float) -> tuple[LpPoint | None, int, Additions | None]:
+    """The LP relaxation solved with separation, a dive for a layout, and its cuts copied into ``cm``.
+
+    Returns:
+        (the root LP point whose duals give the bound and the reduced costs, LP solves, the
+        dive's layout or None).
+    """
+    lp = LpRelaxation(table, k=k)
+    run = lp.run(deadline=deadline)
+    rounds = run.rounds
+    found = None
+    root = run.point
+    if root is not None and run.closed:
+        found = lp.dive(root, deadline=deadline)
+        # The dive's cuts are valid everywhere: re-solve the root with them, if time allows.
+        again = lp.run(deadline=deadline)
+        rounds += again.rounds
+        if again.point is not None and again.point.bound >= root.bound:
+            root = again.point
+    for cut in sorted(lp.cuts, key=lambda c: (len(c.nodes), sorted(c.nodes))):
+        cm.add_cut(cut.nodes, need=cut.need)
+    for labels in sorted(lp.partitions):
+        cm.add_partition(np.array(labels, dtype=np.int64))
+    return root, rounds, found
 
 
 def window_table(table: BayTable, fixed: Additions, rows: IntArray, cols: IntArray) -> BayTable:

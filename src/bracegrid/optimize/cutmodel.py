@@ -23,6 +23,7 @@ import numpy as np
 
 from bracegrid.analysis.digraph import IntArray, bay_nodes, leaving_bays
 from bracegrid.optimize.bays import Additions, AdditionsBuilder, BayCounts, BayTable
+from bracegrid.optimize.lprelax import Cut, Kind, columns
 
 # ortools is imported inside the functions that use it: it is heavy (about 0.5 s to import)
 # and `bracegrid --help`, `check` and `draw` never need it.
@@ -66,55 +67,43 @@ class CutModel:
         self.tf: dict[tuple[int, int], Any] = {}
         self.up: dict[tuple[int, int], list[Any]] = {}
         self.down: dict[tuple[int, int], list[Any]] = {}
-        terms = []
-        coefs = []
+        # One variable per LP column (lprelax.columns), in the same order, so LP reduced costs
+        # and bounds map onto the CP-SAT variables by index.
+        self.columns = columns(table, k)
+        cols = self.columns
+        self.vars: list[Any] = []
+        stores = {Kind.BRACE: self.b, Kind.RISING: self.tr, Kind.FALLING: self.tf}
+        names = {Kind.BRACE: "b", Kind.RISING: "tr", Kind.FALLING: "tf"}
+        for q in range(cols.count):
+            i, j, kind, top = int(cols.i[q]), int(cols.j[q]), Kind(int(cols.kind[q])), int(cols.top[q])
+            name = f"{names[kind]}{i}_{j}"
+            v = m.new_bool_var(name) if top == 1 else m.new_int_var(0, top, name)
+            stores[kind][i, j] = v
+            self.vars.append(v)
+            if cols.up[q]:
+                self.up.setdefault((i, j), []).append(v)
+            if cols.down[q]:
+                self.down.setdefault((i, j), []).append(v)
         slots = table.free_slots
-        for i in range(r_count):
-            for j in range(c_count):
-                s = int(slots[i, j])
-                if s == 0:
-                    continue
-                here: list[Any] = []
-                up: list[Any] = []
-                down: list[Any] = []
-                if table.brace_ok[i, j]:
-                    top = min(s, 1 if k == 0 else 2)
-                    v = m.new_bool_var(f"b{i}_{j}") if top == 1 else m.new_int_var(0, top, f"b{i}_{j}")
-                    self.b[i, j] = v
-                    here.append(v)
-                    up.append(v)
-                    down.append(v)
-                    terms.append(v)
-                    coefs.append(int(table.brace_cost[i, j]))
-                if table.rising_tie_ok[i, j]:
-                    v = m.new_bool_var(f"tr{i}_{j}")
-                    self.tr[i, j] = v
-                    here.append(v)
-                    up.append(v)
-                    terms.append(v)
-                    coefs.append(int(table.tie_cost[i, j]))
-                if table.falling_tie_ok[i, j]:
-                    v = m.new_bool_var(f"tf{i}_{j}")
-                    self.tf[i, j] = v
-                    here.append(v)
-                    down.append(v)
-                    terms.append(v)
-                    coefs.append(int(table.tie_cost[i, j]))
-                if len(here) > 1:
-                    m.add(sum(here) <= s)
-                if k == 0 and (i, j) in self.b:
-                    # A tie beside a brace adds no arc; dropping it never costs more.
-                    for t in (self.tr.get((i, j)), self.tf.get((i, j))):
-                        if t is not None:
-                            m.add(self.b[i, j] + t <= 1)
-                self.up[i, j] = up
-                self.down[i, j] = down
+        for (i, j), here in itertools.groupby(zip(cols.i.tolist(), cols.j.tolist(), self.vars), key=lambda e: e[:2]):
+            group = [e[2] for e in here]
+            if len(group) > 1:
+                m.add(sum(group) <= int(slots[i, j]))
+            if k == 0 and (i, j) in self.b:
+                # A tie beside a brace adds no arc; dropping it never costs more.
+                for t in (self.tr.get((i, j)), self.tf.get((i, j))):
+                    if t is not None:
+                        m.add(self.b[i, j] + t <= 1)
+        terms = self.vars
+        coefs = cols.cost.tolist()
         self.objective = cp_model.LinearExpr.weighted_sum(terms, coefs) if terms else 0
         m.minimize(self.objective)
-        self.cuts: set[frozenset[int]] = set()
+        self.cuts: set[Cut] = set()
         for node in range(self.n):
             self.add_cut(frozenset({node}))
             self.add_cut(frozenset(range(self.n)) - {node})
+        self._low = [0] * cols.count
+        self._high = cols.top.tolist()
         self.partitions: set[tuple[int, ...]] = set()
         if k == 0:
             self.add_partition(np.arange(self.n))
@@ -262,15 +251,20 @@ class CutModel:
 
         return cp_model.LinearExpr.weighted_sum(terms, coefs)
 
-    def add_cut(self, s: frozenset[int]) -> bool:
-        """Require k + 1 member arcs leaving node set S; False if already present or trivially met."""
-        if s in self.cuts or not s or len(s) == self.n:
+    def add_cut(self, s: frozenset[int], *, need: int | None = None) -> bool:
+        """Require ``need`` (default k + 1) member arcs leaving node set S.
+
+        Returns:
+            False if already present or trivially met.
+        """
+        cut = Cut(s, self.k + 1 if need is None else need)
+        if cut in self.cuts or not s or len(s) == self.n:
             return False
-        self.cuts.add(s)
+        self.cuts.add(cut)
         t = self.table
         up_mask, down_mask = leaving_bays(t.rows, t.cols, s)
-        need = self.k + 1 - int(t.exist_up[up_mask].sum() + t.exist_down[down_mask].sum())
-        if need <= 0:
+        short = cut.need - int(t.exist_up[up_mask].sum() + t.exist_down[down_mask].sum())
+        if short <= 0:
             return True
         terms: list[Any] = []
         for i, j in zip(*np.nonzero(up_mask), strict=True):
@@ -280,8 +274,27 @@ class CutModel:
         if not terms:
             self.model.add_bool_or([])  # no member can cross this cut: infeasible
             return True
-        self.model.add(sum(terms) >= need)
+        self.model.add(sum(terms) >= short)
         return True
+
+    def restrict(self, lower: IntArray, upper: IntArray) -> int:
+        """Tighten variable bounds (per column, e.g. from LP reduced costs); returns how many changed.
+
+        Only valid together with the objective cutoff the bounds were derived for (see
+        :func:`bracegrid.optimize.lprelax.fixings`).
+        """
+        changed = 0
+        for q, v in enumerate(self.vars):
+            lo, hi = max(int(lower[q]), self._low[q]), min(int(upper[q]), self._high[q])
+            if lo > self._low[q]:
+                self.model.add(v >= lo)
+                self._low[q] = lo
+                changed += 1
+            if hi < self._high[q]:
+                self.model.add(v <= hi)
+                self._high[q] = hi
+                changed += 1
+        return changed
 
     def read(self, solver: Any) -> Additions:
         """The solver's current answer as additions."""

@@ -227,11 +227,14 @@ def _solve_cp(
         initial_bound=floor,
         lns_rounds=4,
         probe_after=0.5,
+        lp_share=0.5,
     )
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
         raise SolverLimitError(msg)
-    method = SolveMethod.PATTERN_BOUND if result.iterations == 0 else SolveMethod.CUT_LOOP
+    method = SolveMethod.CUT_LOOP
+    if result.iterations == 0:
+        method = SolveMethod.LP_CUTS if result.lp_rounds else SolveMethod.PATTERN_BOUND
     return _Found(result.additions, result.bound, result.proven, method, rounds=result.iterations, cuts=result.cuts)
 
 
