@@ -85,7 +85,8 @@ class CutModel:
             if cols.down[q]:
                 self.down.setdefault((i, j), []).append(v)
         slots = table.free_slots
-        for (i, j), here in itertools.groupby(zip(cols.i.tolist(), cols.j.tolist(), self.vars), key=lambda e: e[:2]):
+        bays = zip(cols.i.tolist(), cols.j.tolist(), self.vars, strict=True)
+        for (i, j), here in itertools.groupby(bays, key=lambda e: (e[0], e[1])):
             group = [e[2] for e in here]
             if len(group) > 1:
                 m.add(sum(group) <= int(slots[i, j]))

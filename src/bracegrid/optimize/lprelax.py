@@ -81,6 +81,10 @@ class Columns:
     up: IntArray
     down: IntArray
 
+    def __post_init__(self) -> None:
+        for name in ("i", "j", "kind", "cost", "top", "up", "down"):
+            getattr(self, name).setflags(write=False)
+
     @property
     def count(self) -> int:
         """Number of columns."""
@@ -90,16 +94,15 @@ class Columns:
 def columns(table: BayTable, k: int) -> Columns:
     """The variables of the cut model of ``table`` (same rules as :class:`CutModel`)."""
     slots = table.free_slots
-    ii, jj, kind, cost, top = [], [], [], [], []
+    entries: list[tuple[int, int, Kind, int, int]] = []  # (i, j, kind, cost, top)
     for i, j in zip(*np.nonzero(slots), strict=True):
         s = int(slots[i, j])
         if table.brace_ok[i, j]:
-            ii.append(i), jj.append(j), kind.append(Kind.BRACE)
-            cost.append(int(table.brace_cost[i, j])), top.append(min(s, 1 if k == 0 else 2))
+            entries.append((int(i), int(j), Kind.BRACE, int(table.brace_cost[i, j]), min(s, 1 if k == 0 else 2)))
         for ok, kd in ((table.rising_tie_ok, Kind.RISING), (table.falling_tie_ok, Kind.FALLING)):
             if ok[i, j]:
-                ii.append(i), jj.append(j), kind.append(kd)
-                cost.append(int(table.tie_cost[i, j])), top.append(1)
+                entries.append((int(i), int(j), kd, int(table.tie_cost[i, j]), 1))
+    ii, jj, kind, cost, top = (list(e) for e in zip(*entries, strict=True)) if entries else ([], [], [], [], [])
     kind_a = np.array(kind, dtype=np.int64)
     return Columns(
         i=np.array(ii, dtype=np.int64),
@@ -122,6 +125,7 @@ class LpPoint:
         bound: Proven lower bound on every layout's added cost (whole cost units, from the duals).
         reduced: Reduced cost of each column (cost units) under the duals behind ``bound``.
         dual_value: The float dual bound before rounding (cost units).
+        duals: The multipliers behind it, one per LP row in the order added (cost units).
     """
 
     x: FloatArray
@@ -129,6 +133,7 @@ class LpPoint:
     bound: int
     reduced: FloatArray
     dual_value: float
+    duals: FloatArray
 
 
 @dataclass(frozen=True, slots=True)
@@ -138,7 +143,8 @@ class LpRun:
     Attributes:
         point: The last solved LP (None if none was solved in time).
         rounds: LP solves.
-        closed: True when the last point violates no cut the separation looks for.
+        closed: True when the last point violates no directed cut (nor a partition inequality the
+            heuristic finds, while partitions were being separated).
     """
 
     point: LpPoint | None
@@ -163,6 +169,7 @@ class LpRelaxation:
         h.addCols(c.count, c.cost / SCALE, np.zeros(c.count), c.top.astype(np.float64), 0, none, none, np.array([]))
         self._highs = h
         self._rows: list[tuple[IntArray, FloatArray]] = []
+        self._origin: list[Cut | tuple[int, ...] | None] = []  # what each row is: a cut, a partition, a slot row
         self._lower: list[float] = []
         self._upper: list[float] = []
         # Slot rows per bay: all new members <= free diagonals; for k = 0 also brace + tie <= 1.
@@ -207,7 +214,7 @@ class LpRelaxation:
         idx, coef, need = self.cut_row(cut)
         if need <= 0:
             return False
-        self._push(idx, coef, need, self._inf)
+        self._push(idx, coef, need, self._inf, cut)
         return True
 
     def add_partition(self, labels: IntArray) -> bool:
@@ -215,7 +222,7 @@ class LpRelaxation:
 
         The argument is in :meth:`CutModel.add_partition`.
         """
-        key = tuple(int(x) for x in labels)
+        key = tuple(_canonical(np.asarray(labels)).tolist())
         p = len(set(key))
         if self.k != 0 or p < 2 or key in self.partitions:
             return False
@@ -231,12 +238,15 @@ class LpRelaxation:
         on = cross[c.i, c.j]
         coef = np.where(c.kind == Kind.BRACE, p, p - 1) * on
         idx = np.flatnonzero(coef)
-        self._push(idx, coef[idx].astype(np.float64), float(need), self._inf)
+        self._push(idx, coef[idx].astype(np.float64), float(need), self._inf, key)
         return True
 
-    def _push(self, idx: IntArray, coef: FloatArray, lower: float, upper: float) -> None:
+    def _push(
+        self, idx: IntArray, coef: FloatArray, lower: float, upper: float, origin: Cut | tuple[int, ...] | None = None
+    ) -> None:
         self._highs.addRow(lower, upper, len(idx), idx.astype(np.int32), coef)
         self._rows.append((idx, coef))
+        self._origin.append(origin)
         self._lower.append(lower)
         self._upper.append(upper)
 
@@ -277,7 +287,7 @@ class LpRelaxation:
         dual = float(y @ side + np.minimum(0.0, d) @ c.top)
         bound = max(0, int(np.ceil(dual - _ROUND_MARGIN)))
         value = float(h.getInfo().objective_function_value) * SCALE
-        return LpPoint(x, value, bound, d, dual)
+        return LpPoint(x, value, bound, d, dual, y)
 
     def arc_values(self, x: FloatArray) -> tuple[FloatArray, FloatArray]:
         """Fractional member arcs per bay (up, down), kept members included."""
@@ -290,7 +300,6 @@ class LpRelaxation:
 
     def separate(self, x: FloatArray, *, deadline: float) -> list[Cut]:
         """Cuts the fractional point violates: support components first, then minimum cuts by maximum flow."""
-        t = self.table
         need = self.k + 1
         up, down = self.arc_values(x)
         found: set[frozenset[int]] = set()
@@ -312,15 +321,27 @@ class LpRelaxation:
                     found.add(cut.leaving_set(self.n))
                 if time.monotonic() > deadline:
                     break
-        out = []
+        out: list[Cut] = []
         for s in sorted(found, key=lambda s: (len(s), sorted(s))):
-            cut = Cut(s, need)
-            if cut in self.cuts or not s or len(s) == self.n:
+            candidate = Cut(s, need)
+            if candidate in self.cuts or not s or len(s) == self.n:
                 continue
-            idx, coef, rhs = self.cut_row(cut)
+            idx, coef, rhs = self.cut_row(candidate)
             if coef @ x[idx] < rhs - _VIOLATION:
-                out.append(cut)
+                out.append(candidate)
         return out
+
+    def binding(self, point: LpPoint) -> tuple[list[Cut], list[IntArray]]:
+        """The cuts and partitions with a positive multiplier at ``point``: the rows its bound rests on."""
+        cuts: list[Cut] = []
+        parts: list[IntArray] = []
+        for r in np.flatnonzero(point.duals[: len(self._origin)] > 0):
+            origin = self._origin[r]
+            if isinstance(origin, Cut):
+                cuts.append(origin)
+            elif origin is not None:
+                parts.append(np.array(origin, dtype=np.int64))
+        return cuts, parts
 
     def set_bounds(self, lower: FloatArray, upper: FloatArray) -> None:
         """Change every column's bounds (the rows stay)."""
@@ -374,8 +395,59 @@ class LpRelaxation:
             self.set_bounds(np.zeros(c.count), top)
         return found
 
-    def run(self, *, deadline: float, max_rounds: int = 200) -> LpRun:
-        """Solve, separate, add the violated cuts, repeat: until none is violated, or the deadline."""
+    def violated_partitions(self, x: FloatArray, *, limit: int = 20) -> list[IntArray]:
+        """Partitions whose inequality the fractional point violates, most violated first (k = 0).
+
+        A heuristic: merge nodes along bays in decreasing LP weight (Kruskal's order), and test
+        the partition into the current pieces after every merge (at most n - 1 partitions).
+        """
+        t, c = self.table, self.cols
+        if self.k != 0 or c.count == 0:
+            return []
+        weight = np.zeros((t.rows, t.cols))
+        np.add.at(weight, (c.i, c.j), x)
+        parent = np.arange(self.n)
+
+        def find(a: int) -> int:
+            while parent[a] != a:
+                parent[a] = parent[parent[a]]
+                a = int(parent[a])
+            return a
+
+        brace = c.kind == Kind.BRACE
+        kept_b = np.minimum(t.exist_up, t.exist_down)
+        kept_t = t.exist_up + t.exist_down - 2 * kept_b
+        found: list[tuple[float, tuple[int, ...]]] = []
+        for flat in np.argsort(-weight, axis=None, kind="stable"):
+            i, j = divmod(int(flat), t.cols)
+            if weight[i, j] <= 1e-9:
+                break
+            a, b = find(i), find(t.rows + j)
+            if a == b:
+                continue
+            parent[a] = b
+            roots = np.array([find(v) for v in range(self.n)])
+            labels = np.unique(roots, return_inverse=True)[1]
+            p = int(labels.max()) + 1
+            if p < 3:  # two parts: the sum of the two directed cuts, already in
+                continue
+            cross = labels[c.i] != labels[t.rows + c.j]
+            lhs = float(np.where(brace, p, p - 1) @ (x * cross))
+            kept_cross = labels[: t.rows, None] != labels[None, t.rows :]
+            lhs += p * float(kept_b[kept_cross].sum()) + (p - 1) * float(kept_t[kept_cross].sum())
+            short = (p * (p - 1) - lhs) / p
+            if short > _VIOLATION:
+                found.append((short, tuple(_canonical(labels).tolist())))
+        found.sort(key=lambda e: (-e[0], e[1]))
+        return [np.array(key, dtype=np.int64) for _, key in found[:limit]]
+
+    def run(self, *, deadline: float, max_rounds: int = 200, partitions_until: float | None = None) -> LpRun:
+        """Solve, separate, add the violated rows, repeat: until none is violated, or the deadline.
+
+        Directed cuts are separated first; once the point meets them all, partition
+        inequalities (k = 0) while ``time.monotonic()`` is before ``partitions_until``
+        (None = never). Their rows are dense and each round raises the bound a little.
+        """
         point = None
         rounds = 0
         while rounds < max_rounds:
@@ -388,11 +460,25 @@ class LpRelaxation:
             point = got
             rounds += 1
             cuts = self.separate(point.x, deadline=deadline)
-            if not cuts:
-                return LpRun(point, rounds, True)
             for cut in cuts:
                 self.add_cut(cut)
+            if cuts:
+                continue
+            added = 0
+            if partitions_until is not None and time.monotonic() < partitions_until:
+                for labels in self.violated_partitions(point.x):
+                    added += self.add_partition(labels)
+            if not added:
+                return LpRun(point, rounds, True)
         return LpRun(point, rounds, False)
+
+
+def _canonical(labels: IntArray) -> IntArray:
+    """Part labels numbered by first appearance (one key per partition)."""
+    _, first, inverse = np.unique(labels, return_index=True, return_inverse=True)
+    rank = np.empty(len(first), dtype=np.int64)
+    rank[np.argsort(first, kind="stable")] = np.arange(len(first))
+    return rank[inverse]
 
 
 def fixings(point: LpPoint, cols: Columns, incumbent: int) -> tuple[IntArray, IntArray]:
@@ -417,4 +503,3 @@ def fixings(point: LpPoint, cols: Columns, incumbent: int) -> tuple[IntArray, In
         neg = d < 0
         lower[neg] = np.maximum(0, cols.top[neg] - np.floor(slack / -d[neg])).astype(np.int64)
     return lower, upper
-
