@@ -194,7 +194,7 @@ def _solve_cp(
         # Walk starts pay off on small or uniform frames; on large random ones they only eat time.
         walks = 3 if table.rows * table.cols <= 600 or _uniform(table) else 0
         starts = [
-            constructive_redundant(table, None, k, deadline=deadline),
+            constructive_redundant(table, None, k, deadline=budget),  # pruning stops at the budget
             redundant_pattern_starts(table, k, tries=walks, seed=options.seed, deadline=budget),
         ]
     found = [s for s in starts if s is not None]
@@ -233,8 +233,10 @@ def _solve_cp(
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
         raise SolverLimitError(msg)
     method = SolveMethod.CUT_LOOP
-    if result.iterations == 0:
-        method = SolveMethod.LP_CUTS if result.lp_rounds else SolveMethod.PATTERN_BOUND
+    if result.iterations == 0 and result.lp_rounds:
+        method = SolveMethod.LP_CUTS
+    elif result.iterations == 0 and result.proven:
+        method = SolveMethod.PATTERN_BOUND
     return _Found(result.additions, result.bound, result.proven, method, rounds=result.iterations, cuts=result.cuts)
 
 
