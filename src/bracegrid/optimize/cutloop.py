@@ -79,7 +79,6 @@ def solve_with_cuts(
     lns_rounds: int = 0,
     probe_after: float | None = None,
     lp_share: float = 0.0,
-    round_share: float | None = None,
 ) -> CutSolveResult:
     """Run the lazy-cut loop until proven optimal or the deadline.
 
@@ -102,8 +101,6 @@ def solve_with_cuts(
         lp_share: Share of the time the LP stage may take before the CP-SAT rounds (0 = no LP
             stage): the LP relaxation with cuts separated on fractional points gives a bound,
             its dive a layout, its reduced costs fix variables, and its cuts seed the model.
-        round_share: Cap of one CP-SAT round, as a share of the time (deterministic seconds);
-            a capped round's answer is separated and repaired like any other. None = uncapped.
 
     Returns:
         The best layout, a proven lower bound and whether it is optimal.
@@ -181,10 +178,6 @@ def solve_with_cuts(
         p = solver.parameters
         configure(p, workers=workers, seed=seed, seconds=remaining)
         p.relative_gap_limit = 1e-4
-        if round_share is not None:
-            # A round that cannot close its own gap still yields an answer to separate and
-            # repair; deterministic time keeps one-worker runs repeatable.
-            p.max_deterministic_time = max(0.5, round_share * budget)
         collector: Any = collector_for(cm)
         status = solver.solve(cm.model, collector)
         iterations += 1
@@ -197,10 +190,7 @@ def solve_with_cuts(
                     on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
             break
         if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
-            if round_share is None or time.monotonic() >= deadline:
-                break
-            round_share *= 2  # a capped round found nothing: the next one gets twice as long
-            continue
+            break
         # Valid for the full problem: any layout cheaper than the incumbent is in this relaxation.
         bound = max(bound, int(np.ceil(solver.best_objective_bound - 1e-6)))
         relaxed = cm.read(solver)
@@ -230,7 +220,7 @@ def solve_with_cuts(
                     proven, bound = True, best_cost
         if on_step is not None:
             on_step(LoopReport(iterations, best_cost, bound, len(cm.cuts)))
-        if proven or time.monotonic() >= deadline or (status != cp_model.OPTIMAL and round_share is None):
+        if proven or status != cp_model.OPTIMAL or time.monotonic() >= deadline:
             break
         for s in cuts:
             cm.add_cut(s)
