@@ -22,7 +22,6 @@ from bracegrid.compare import StrategyKey, compare_project
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
     MEMBER_REF_HELP,
-    OutputFile,
     check_out_folder,
     load_project,
     parse_member_refs,
@@ -32,17 +31,14 @@ from bracegrid.io import (
 from bracegrid.model import Frame, MemberKind, Project
 from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
-    build_drawing,
     check_dict,
     compare_dict,
-    dxf_bytes,
     optimize_dict,
     parse_formats,
     progress_line,
     render_check,
     render_compare,
-    render_compare_csv,
-    render_html,
+    render_compare_outputs,
     render_optimize,
     render_outputs,
 )
@@ -243,15 +239,7 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
             progress.advance(task)
 
         comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
-    today = date.today()
-    files = [OutputFile(f"{source.stem}-compare.csv", render_compare_csv(comparison).encode("utf-8"))]
-    for key in StrategyKey:
-        solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
-        if solved:
-            doc = build_drawing(project, frames=solved, when=today).doc
-            files.append(OutputFile(f"{source.stem}-{key.value}.dxf", dxf_bytes(doc)))
-    page = render_html(comparison, when=today, time_limit=args.time_limit)
-    files.append(OutputFile("report.html", page.encode("utf-8")))
+    files = render_compare_outputs(comparison, stem=source.stem, when=date.today(), time_limit=args.time_limit)
     written = write_outputs(folder, files)
     if args.json:
         payload = compare_dict(comparison)
