@@ -236,11 +236,18 @@ def editor_project_dict(project: Project, *, version: str, file_name: str) -> di
     }
 
 
-def live_check_dict(frame: Frame, verdict: Verdict, costs: CostCatalogue) -> dict[str, Any]:
-    """The editor's live verdict: the check of ``bracegrid check --json`` plus counts, cost and blocked bays."""
+def live_check_dict(frame: Frame, verdict: Verdict, costs: CostCatalogue, *, unit: str) -> dict[str, Any]:
+    """The editor's live verdict: the check of ``bracegrid check --json`` plus counts, cost, sizes and blocked bays."""
     return {
         "verdict": verdict_dict(verdict),
         "summary": layout_summary_dict(frame, costs),
+        "sizes": {
+            "widths_mm": list(frame.widths),
+            "heights_mm": list(frame.heights),
+            "width": length_in_unit(frame.width_mm, unit),
+            "height": length_in_unit(frame.height_mm, unit),
+            "unit": unit,
+        },
         "blocked_by_openings": [list(b) for b in sorted(blocked_bays(frame) - frame.blocked)],
         "caution": CAUTION,
     }
@@ -279,8 +286,9 @@ def problems_dict(problems: Iterable[str], *, frame_names: Sequence[str] = ()) -
         >>> problems_dict(["frame 'f'.widths[2]: size must be positive"], frame_names=["f"])["problems"][0]
         {'frame': 'f', 'field': 'widths', 'index': 2, 'message': "frame 'f'.widths[2]: size must be positive"}
     """
-    items = []
-    for text in problems:
+    texts = list(problems)
+    items: list[dict[str, Any]] = []
+    for text in texts:
         where = text.split(": ", 1)[0]
         frame = next((n for n in frame_names if f"frame {n!r}" in where), None)
         field, index = "project", None
@@ -291,8 +299,7 @@ def problems_dict(problems: Iterable[str], *, frame_names: Sequence[str] = ()) -
         elif frame is not None:
             field = "frame"
         items.append({"frame": frame, "field": field, "index": index, "message": text})
-    listed = [i["message"] for i in items]
-    return {"error": "invalid", "message": "; ".join(listed), "problems": items}
+    return {"error": "invalid", "message": "; ".join(texts), "problems": items}
 
 
 def error_dict(error: str, message: str, **extra: Any) -> dict[str, Any]:
