@@ -281,7 +281,7 @@
     const W = xs[xs.length - 1], H = ys[ys.length - 1];
     const big = Math.max(W, H);
     const font = Math.min(big / 42, Math.min(...f.widthsMm) * 0.42, Math.min(...f.heightsMm) * 0.55);
-    const left = font * 7.5, right = font * 6.5, top = font * 6.5, bottom = font * 5;
+    const left = font * 7.5, right = font * 6.5, top = font * 7.5, bottom = font * 5.5;
     return { xs, ys, W, H, font, left, right, top, bottom, rows: f.heightsMm.length, cols: f.widthsMm.length };
   }
 
@@ -491,7 +491,7 @@
         const sense = { clockwise: "↻", anticlockwise: "↺", both: "⇄" }[p.direction] || "";
         let x, y, anchor = "start";
         if (p.rows.length) { x = g.W + g.font * 0.6; y = sy(g, (g.ys[p.rows[0] - 1] + g.ys[p.rows[0]]) / 2) + g.font * 0.35; }
-        else { const c = p.columns[0]; x = (g.xs[c - 1] + g.xs[c]) / 2; y = -g.font * 3.4; anchor = "middle"; }
+        else { const c = p.columns[0]; x = (g.xs[c - 1] + g.xs[c]) / 2; y = g.H + g.font * (frame().supports === "base" ? 4.2 : 3.2); anchor = "middle"; }
         html += `<text x="${x}" y="${y}" font-size="${g.font * 0.9}" text-anchor="${anchor}" fill="${colour}" class="loose-tag">L${i + 1} ${sense}</text>`;
       });
     }
@@ -539,6 +539,7 @@
       box.dataset.state = f.problems.length ? "invalid" : "pending";
       box.textContent = f.problems.length ? "Not checked: fix the fields marked below" : "checking…";
       box.dataset.seq = String(seq);
+      state.shownSeq = seq;
       return;
     }
     const v = f.verdict.verdict;
@@ -805,8 +806,8 @@
     const status = s.status === "optimal" ? "proven cheapest" : `within ${pct(s.gap)} of the bound`;
     $("proposal-text").textContent =
       `${job.kind === "repair" ? "Repair" : "Optimizer"}: ${outs ? `take out ${outs}, ` : ""}add ${adds} member${adds === 1 ? "" : "s"} ` +
-      `(${s.new_braces} braces, ${s.new_ties} ties) for ${money(s.added_cost)}; whole layout ${money(s.cost)}, ${status} ` +
-      `(${s.method}). Shown dashed in green until accepted.`;
+      `(${s.new_braces} braces, ${s.new_ties} ties) for ${money(s.added_cost)}; whole layout ${money(s.cost)}, ${status}, ` +
+      `by ${s.method}. Shown dashed in green until accepted.`;
     $("proposal-card").hidden = false;
     renderOffers();
   }
