@@ -119,7 +119,10 @@ _POINT = """([r, c, d]) => {
   return [q.x, q.y];
 }"""
 
-_SETTLED = "() => { const s = window.bracegrid; return s.checkSeq > 0 && !s.inflight && !s.pending && s.shownSeq === s.checkSeq; }"
+_SETTLED = (
+    "() => { const s = window.bracegrid; "
+    "return s.checkSeq > 0 && !s.inflight && !s.pending && s.shownSeq === s.checkSeq; }"
+)
 
 
 def _point(tab: Any, row: int, col: int, diagonal: str = "rising") -> tuple[float, float]:
