@@ -99,7 +99,7 @@ class CutModel:
         coefs = cols.cost.tolist()
         self.objective = cp_model.LinearExpr.weighted_sum(terms, coefs) if terms else 0
         m.minimize(self.objective)
-        self.cuts: set[Cut] = set()
+        self.cuts: dict[frozenset[int], int] = {}  # node set -> member arcs it needs leaving it
         for node in range(self.n):
             self.add_cut(frozenset({node}))
             self.add_cut(frozenset(range(self.n)) - {node})
@@ -256,12 +256,12 @@ class CutModel:
         """Require ``need`` (default k + 1) member arcs leaving node set S.
 
         Returns:
-            False if already present or trivially met.
+            False if already in the model (or S is empty or everything), True otherwise.
         """
         cut = Cut(s, self.k + 1 if need is None else need)
-        if cut in self.cuts or not s or len(s) == self.n:
+        if self.cuts.get(s, 0) >= cut.need or not s or len(s) == self.n:
             return False
-        self.cuts.add(cut)
+        self.cuts[s] = cut.need
         t = self.table
         up_mask, down_mask = leaving_bays(t.rows, t.cols, s)
         short = cut.need - int(t.exist_up[up_mask].sum() + t.exist_down[down_mask].sum())

@@ -1,7 +1,7 @@
 """The outputs stage: text, JSON shapes, the bill, the DXF sheet, previews, the HTML report and file bundles."""
 
 from bracegrid.outputs.bill import Bom, build_bom, render_bom_csv
-from bracegrid.outputs.bundle import OutputFormat, parse_formats, render_outputs
+from bracegrid.outputs.bundle import OutputFormat, parse_formats, render_compare_outputs, render_outputs
 from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes, write_dxf
 from bracegrid.outputs.htmlreport import render_html
 from bracegrid.outputs.preview import PreviewFormat, render_preview, write_preview
@@ -25,6 +25,7 @@ __all__ = [
     "render_check",
     "render_compare",
     "render_compare_csv",
+    "render_compare_outputs",
     "render_html",
     "render_optimize",
     "render_outputs",
