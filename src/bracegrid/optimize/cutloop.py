@@ -121,7 +121,7 @@ def solve_with_cuts(
     lp_rounds = 0
     root: LpPoint | None = None
     if lp_share > 0 and not proven:
-        root, lp_rounds, found = _lp_stage(table, cm, k, deadline=started + lp_share * budget)
+        root, lp_rounds, found = _lp_stage(table, cm, k, deadline=started + lp_share * budget, incumbent=best_cost)
         if root is not None:
             bound = max(bound, root.bound)
         if found is not None:
@@ -234,9 +234,11 @@ def solve_with_cuts(
 
 
 def _lp_stage(
-    table: BayTable, cm: CutModel, k: int, *, deadline: float
+    table: BayTable, cm: CutModel, k: int, *, deadline: float, incumbent: int | None
 ) -> tuple[LpPoint | None, int, Additions | None]:
     """The LP relaxation solved with separation, a dive for a layout, and its cuts copied into ``cm``.
+
+    The dive is skipped when the bound already meets the incumbent's cost (it is then proven).
 
     Returns:
         (the root LP point whose duals give the bound and the reduced costs, LP solves, the
@@ -250,7 +252,7 @@ def _lp_stage(
     rounds = run.rounds
     found = None
     root = run.point
-    if root is not None and run.closed:
+    if root is not None and run.closed and (incumbent is None or root.bound < incumbent):
         found = lp.dive(root, deadline=deadline)
         # The dive's cuts are valid everywhere: re-solve the root with them, if time allows.
         again = lp.run(deadline=deadline)

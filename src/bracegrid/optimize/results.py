@@ -29,7 +29,7 @@ class SolveMethod(Enum):
     CUT_LOOP = "cut-loop"
     """CP-SAT on the cut model with lazily separated directed cuts."""
     LP_CUTS = "lp-cuts"
-    """The LP relaxation of the cut model (cuts separated on fractional points) and an LP dive, no CP-SAT round."""
+    """The LP relaxation of the cut model (cuts separated on fractional points) proves the layout; no CP-SAT round."""
 
 
 def method_words(method: SolveMethod, *, pattern: PatternKind | None = None, rounds: int = 0, cuts: int = 0) -> str:
@@ -53,7 +53,7 @@ _METHOD_WORDS = {
     SolveMethod.SPANNING_TREE: "minimum spanning tree of braces",
     SolveMethod.PINNED_ROWS: "pinned-base rows (exact per row)",
     SolveMethod.PATTERN_BOUND: "pattern layout, proven by the complete-frame closed-form bound",
-    SolveMethod.LP_CUTS: "LP relaxation with directed cuts (HiGHS), layout by LP diving",
+    SolveMethod.LP_CUTS: "LP bound of the directed-cut model (HiGHS) met by the layout",
 }
 
 
