@@ -195,7 +195,9 @@ def solve_with_cuts(
         bound = max(bound, int(np.ceil(solver.best_objective_bound - 1e-6)))
         relaxed = cm.read(solver)
         cuts = violated_cuts(table, relaxed, k)
-        candidate = relaxed if not cuts else improve(relaxed)
+        # Past the deadline a repair would only overrun the limit, unless nothing is in hand yet.
+        late = best is not None and time.monotonic() >= deadline
+        candidate = relaxed if not cuts else (None if late else improve(relaxed))
         if candidate is not None:
             c = candidate.cost(table)
             if best_cost is None or c < best_cost:
@@ -253,7 +255,7 @@ def _lp_stage(
     found = None
     root = run.point
     if root is not None and run.closed and (incumbent is None or root.bound < incumbent):
-        found = lp.dive(root, deadline=deadline)
+        found = lp.dive(root, deadline=deadline, cutoff=incumbent)
         # The dive's cuts are valid everywhere: re-solve the root with them, if time allows.
         again = lp.run(deadline=deadline)
         rounds += again.rounds

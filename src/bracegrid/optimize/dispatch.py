@@ -193,8 +193,12 @@ def _solve_cp(
         budget = start_time + 0.1 * max(0.0, deadline - start_time)
         # Walk starts pay off on small or uniform frames; on large random ones they only eat time.
         walks = 3 if table.rows * table.cols <= 600 or _uniform(table) else 0
+        # On those large random frames the greedy start (maximum flows per member) can take the
+        # whole limit under load, before any bound; the LP dive gives the layout there, and the
+        # greedy layout is made afterwards only if nothing was found.
+        greedy = walks > 0
         starts = [
-            constructive_redundant(table, None, k, deadline=budget),  # pruning stops at the budget
+            constructive_redundant(table, None, k, deadline=budget) if greedy else None,
             redundant_pattern_starts(table, k, tries=walks, seed=options.seed, deadline=budget),
         ]
     found = [s for s in starts if s is not None]
@@ -229,6 +233,10 @@ def _solve_cp(
         probe_after=0.5,
         lp_share=0.5,
     )
+    if result.additions is None and k > 0:
+        late = constructive_redundant(table, None, k, deadline=time.monotonic())
+        if late is not None:
+            result = dataclasses.replace(result, additions=late)
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
         raise SolverLimitError(msg)

@@ -365,7 +365,7 @@ class LpRelaxation:
             np.add.at(arr, (c.i[sel], c.j[sel]), v[sel])
         return add.build()
 
-    def dive(self, start: LpPoint, *, deadline: float) -> Additions | None:
+    def dive(self, start: LpPoint, *, deadline: float, cutoff: int | None = None) -> Additions | None:
         """LP diving: fix members up, one fractional column at a time, re-solving with separation.
 
         Each step fixes at their value every column the point already sets to 1 (or 2), and the
@@ -373,7 +373,9 @@ class LpRelaxation:
         the point is integral: it then meets every cut the separation knows (for k = 0, it is
         strongly connected). Fixing a column up never makes a covering row harder, so the dive
         only stops on the deadline. The column bounds are restored afterwards; the cuts found on
-        the way stay (they are valid for every layout).
+        the way stay (they are valid for every layout). The dive gives up once its LP value
+        reaches ``cutoff`` (an incumbent's cost): fixing only raises the value, so its layout
+        could not be cheaper.
 
         Returns:
             The integral point as additions (the caller re-checks and prunes it), or None.
@@ -406,7 +408,7 @@ class LpRelaxation:
                 # 10.3 s at 80 x 80); between the every-fourth full steps only the support's
                 # strong components are checked, which catches any cut the point leaves empty.
                 got = self.run(deadline=deadline, flows=step % _DIVE_FLOW_EVERY == 0)
-                if got.point is None or not got.closed:
+                if got.point is None or not got.closed or (cutoff is not None and got.point.value >= cutoff):
                     break
                 x = got.point.x
         finally:
