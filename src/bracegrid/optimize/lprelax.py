@@ -18,12 +18,15 @@ from enum import IntEnum
 
 import numpy as np
 import numpy.typing as npt
-from scipy.optimize._highspy import _core  # scipy's own HiGHS binding: incremental rows, warm starts
 
 from bracegrid.analysis.digraph import IntArray, bay_arcs, flow_cuts, node_sides, strong_components
 from bracegrid.optimize.bays import SCALE, Additions, AdditionsBuilder, BayTable
 
 FloatArray = npt.NDArray[np.float64]
+
+# scipy's own HiGHS binding (scipy.optimize._highspy: incremental rows, warm starts, no banner on
+# standard output) is imported where an LP is built: scipy.optimize adds about 0.2 s to start-up,
+# and `bracegrid --help`, `check` and `draw` never solve an LP.
 
 #: Arc values are scaled to integers for scipy's maximum flow: 2**20 steps per member arc, so a
 #: cut's flow value is known to within (number of arcs) / 2**20 of its exact value, far below the
@@ -164,6 +167,9 @@ class LpRelaxation:
         self.cols = columns(table, k)
         self.n = table.rows + table.cols
         c = self.cols
+        from scipy.optimize._highspy import _core
+
+        self._optimal = _core.HighsModelStatus.kOptimal
         h = _core._Highs()
         for name, value in (("output_flag", False), ("presolve", "off"), ("threads", 1), ("random_seed", 0)):
             h.setOptionValue(name, value)
@@ -268,7 +274,7 @@ class LpRelaxation:
         # HiGHS' time limit counts the object's whole run time, so it is set past what has been used.
         h.setOptionValue("time_limit", float(h.getRunTime()) + max(0.01, float(seconds)))
         h.run()
-        if h.getModelStatus() != _core.HighsModelStatus.kOptimal:
+        if h.getModelStatus() != self._optimal:
             return None
         sol = h.getSolution()
         x = np.clip(np.asarray(sol.col_value, dtype=np.float64), 0.0, c.top)
