@@ -21,6 +21,8 @@ from shapely.geometry import box
 from shapely.validation import explain_validity
 
 from bracegrid.errors import InputError
+from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
+from bracegrid.io.robustness import read_robustness
 from bracegrid.model import (
     CostCatalogue,
     CostRate,
@@ -430,7 +432,7 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
         raise InputError(msg, source=source) from None
     col = _Collector()
     lines = _Lines.scan(text)
-    col.unknown_keys("top level", data, {"project", "costs", "frame"})
+    col.unknown_keys("top level", data, {"project", "costs", "frame", ROBUSTNESS_TABLE})
     head = col.table("[project]", data.get("project", {}))
     name = "untitled"
     unit = "m"
@@ -446,6 +448,8 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
         else:
             unit = raw_unit
     costs = _read_costs(col, data.get("costs"))
+    likelihood, robustness_problems = read_robustness(data.get(ROBUSTNESS_TABLE), text=text)
+    col.problems.extend(robustness_problems)
     raw_frames = data.get("frame")
     frames: list[Frame] = []
     if not isinstance(raw_frames, list) or not raw_frames:
@@ -460,7 +464,9 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
     if col.problems or costs is None:
         raise InputError(col.problems or ["costs could not be read"], source=source)
-    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source)
+    return Project(
+        name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source, loss_likelihood=likelihood
+    )
 
 
 def load_project(path: str | Path) -> Project:

@@ -8,6 +8,8 @@ from typing import Any
 import tomli_w
 
 from bracegrid.io.atomic import write_text_atomic
+from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
+from bracegrid.io.robustness import robustness_table
 from bracegrid.model import CostRate, Frame, MemberKind, Project
 from bracegrid.units import MM_PER_UNIT
 
@@ -72,7 +74,11 @@ def render_project(project: Project) -> str:
     head: dict[str, Any] = {"name": project.name}
     if project.length_unit != "m":
         head["length_unit"] = project.length_unit
-    doc = {"project": head, "costs": costs, "frame": [_frame(f, project.length_unit) for f in project.frames]}
+    doc: dict[str, Any] = {"project": head, "costs": costs}
+    robustness = robustness_table(project.loss_likelihood)
+    if robustness is not None:
+        doc[ROBUSTNESS_TABLE] = robustness
+    doc["frame"] = [_frame(f, project.length_unit) for f in project.frames]
     return tomli_w.dumps(doc)
 
 

@@ -12,6 +12,7 @@ from dataclasses import dataclass
 
 from bracegrid.model.costs import CostCatalogue
 from bracegrid.model.kinds import Diagonal, MemberKind, Supports
+from bracegrid.model.losses import LossLikelihood
 from bracegrid.units import diagonal_mm
 
 
@@ -142,6 +143,7 @@ class Project:
         costs: Prices.
         length_unit: Unit of bare numbers in the file (kept for writing back).
         source: The file it was read from, if any.
+        loss_likelihood: How likely each member kind is to go missing (robustness statistics).
     """
 
     name: str
@@ -149,6 +151,7 @@ class Project:
     costs: CostCatalogue = CostCatalogue()
     length_unit: str = "m"
     source: str = ""
+    loss_likelihood: LossLikelihood = LossLikelihood()
 
     def frame(self, name: str) -> Frame:
         """The frame with this name.

@@ -8,15 +8,17 @@ from __future__ import annotations
 
 import html
 import re
+from collections.abc import Sequence
 from datetime import date
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION
-from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult
+from bracegrid.analysis import CAUTION, ROBUSTNESS_LIMITS
+from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult, StrategyRobustness
 from bracegrid.model import Project
 from bracegrid.outputs.bill import FrameBom, build_bom
 from bracegrid.outputs.drawing import build_drawing
 from bracegrid.outputs.preview import PreviewFormat, render_preview
+from bracegrid.outputs.robustplot import PlotFormat, expected_words, render_robustness_plot, strategy_panels
 from bracegrid.units import format_length_m
 
 _STYLE = """
@@ -134,13 +136,32 @@ def _strategy_section(project: Project, fc: FrameComparison, s: StrategyResult, 
     return f"{title}{figure}<h4>Bill of materials</h4>{_bom_table(bom)}"
 
 
-def render_html(comparison: Comparison, *, when: date | None = None, time_limit: float | None = None) -> str:
+def _robustness_section(curves: Sequence[StrategyRobustness]) -> str:
+    """The strategies' robustness curves: one inline SVG plot and a line per strategy."""
+    svg = _scope_ids(inline_svg(render_robustness_plot(strategy_panels(curves), PlotFormat.SVG)), "robust-")
+    items = "".join(f"<li>{_e(c.frame)} / {_e(c.key.title)}: {_e(expected_words(c.result))}</li>" for c in curves)
+    return (
+        "<h2>Robustness: members lost at random</h2>"
+        "<p>For each stable strategy layout, the probability that it stays free of mechanisms after k members "
+        "go missing at random (docs/robustness.md), and the expected number of losses until the first mechanism."
+        f"</p><figure>{svg}<figcaption>{_e(ROBUSTNESS_LIMITS)}</figcaption></figure><ul>{items}</ul>"
+    )
+
+
+def render_html(
+    comparison: Comparison,
+    *,
+    when: date | None = None,
+    time_limit: float | None = None,
+    robustness: Sequence[StrategyRobustness] = (),
+) -> str:
     """The whole report as one HTML document.
 
     Args:
         comparison: The strategies solved for each frame.
         when: Report date (default: today).
         time_limit: Solver time limit per strategy, for the record.
+        robustness: The strategies' robustness curves (a section with their plot when given).
 
     Returns:
         HTML text with every drawing inline.
@@ -178,6 +199,8 @@ def render_html(comparison: Comparison, *, when: date | None = None, time_limit:
         parts.append(_totals_table(comparison))
     for fc in comparison.frames:
         parts.append(f"<h2>{_e(fc.frame.name)}: comparison</h2>{_comparison_table(fc)}")
+    if robustness:
+        parts.append(_robustness_section(robustness))
     index = 0
     for fc in comparison.frames:
         parts.append(f"<h2>{_e(fc.frame.name)}: drawings</h2>")

@@ -6,10 +6,21 @@ tools read are fixed (see docs/). Values are Python scalars, never numpy ones.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from typing import Any
 
-from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part
+from bracegrid.analysis import (
+    CAUTION,
+    CONFIDENCE,
+    ROBUSTNESS_LIMITS,
+    Addition,
+    AdditionAdvice,
+    Robustness,
+    Verdict,
+    addition_words,
+    anchor_words,
+    describe_part,
+)
 from bracegrid.compare import Comparison
 from bracegrid.model import Member, MemberKind
 from bracegrid.optimize import FrameSolution, ProjectSolution
@@ -45,11 +56,79 @@ def verdict_dict(verdict: Verdict) -> dict[str, Any]:
     }
 
 
-def check_dict(verdicts: Sequence[Verdict]) -> dict[str, Any]:
-    """The JSON object of ``bracegrid check``."""
+def addition_dict(addition: Addition) -> dict[str, Any]:
+    """One candidate addition as JSON: the member, the loose parts it locks, its price."""
     return {
-        "stable": all(v.stable for v in verdicts),
-        "frames": [verdict_dict(v) for v in verdicts],
+        "member": member_dict(addition.member),
+        "parts_locked": addition.parts_locked,
+        "cost": addition.cost,
+        "description": addition_words(addition),
+    }
+
+
+def check_dict(verdicts: Sequence[Verdict], *, additions: Mapping[str, AdditionAdvice] | None = None) -> dict[str, Any]:
+    """The JSON object of ``bracegrid check``.
+
+    Args:
+        verdicts: One per frame.
+        additions: For unstable frames (by name), the single additions that lock the most loose
+            parts; each frame listed gets ``best_additions`` and ``best_additions_per_cost``.
+    """
+    frames = []
+    for v in verdicts:
+        item = verdict_dict(v)
+        advice = (additions or {}).get(v.frame)
+        if advice is not None:
+            item["best_additions"] = [addition_dict(a) for a in advice.most]
+            item["best_additions_per_cost"] = [addition_dict(a) for a in advice.per_cost]
+        frames.append(item)
+    return {"stable": all(v.stable for v in verdicts), "frames": frames, "caution": CAUTION}
+
+
+def robustness_frame_dict(result: Robustness) -> dict[str, Any]:
+    """One frame's robustness statistics as JSON.
+
+    The keys ``name``, ``members``, ``curve`` (``lost``, ``p_stable``, ``low``, ``high``, ``exact``)
+    and ``expected_losses_to_mechanism`` are fixed (docs/robustness.md); the others add detail.
+    """
+    e = result.expected_losses
+    return {
+        "name": result.frame,
+        "members": result.members,
+        "curve": [
+            {"lost": p.lost, "p_stable": p.p_stable, "low": p.low, "high": p.high, "exact": p.exact}
+            for p in result.curve
+        ],
+        "expected_losses_to_mechanism": None if e is None else e.value,
+        "expected_losses_low": None if e is None else e.low,
+        "expected_losses_high": None if e is None else e.high,
+        "expected_losses_exact": None if e is None else e.exact,
+        "stable": result.stable,
+        "losable": result.losable,
+        "samples": result.samples,
+        "seed": result.seed,
+        "loss_likelihood": {k.value: result.likelihood.weight(k) for k in MemberKind},
+        "member_ranking": [
+            {
+                "member": member_dict(d.member),
+                "curve_drop": d.drop,
+                "low": d.low,
+                "high": d.high,
+                "critical": d.critical,
+            }
+            for d in result.ranking
+        ],
+        "ranking_samples": result.ranking_samples,
+    }
+
+
+def robustness_dict(results: Sequence[Robustness]) -> dict[str, Any]:
+    """The JSON object of ``bracegrid robustness``: ``{"frames": [...]}`` plus the method and limits."""
+    return {
+        "frames": [robustness_frame_dict(r) for r in results],
+        "confidence": CONFIDENCE,
+        "intervals": "Clopper-Pearson for probabilities, Student t for means",
+        "limits": ROBUSTNESS_LIMITS,
         "caution": CAUTION,
     }
 

@@ -4,14 +4,24 @@ from __future__ import annotations
 
 import csv
 import io
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 from rich.console import Console
 from rich.table import Table
 
-from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part, redundancy_words
+from bracegrid.analysis import (
+    CAUTION,
+    ROBUSTNESS_LIMITS,
+    AdditionAdvice,
+    Robustness,
+    Verdict,
+    addition_words,
+    anchor_words,
+    describe_part,
+    redundancy_words,
+)
 from bracegrid.compare import Comparison, StrategyKey
-from bracegrid.model import Member
+from bracegrid.model import Member, MemberKind
 from bracegrid.optimize import ProgressEvent, ProjectSolution
 from bracegrid.outputs.shapes import compare_rows, solution_counts
 
@@ -29,8 +39,16 @@ def _members_text(members: Sequence[Member], *, limit: int = 12) -> str:
     return ", ".join(labels) + more
 
 
-def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
-    """Human-readable result of ``bracegrid check``."""
+def render_check(
+    project_name: str, verdicts: Sequence[Verdict], *, additions: Mapping[str, AdditionAdvice] | None = None
+) -> str:
+    """Human-readable result of ``bracegrid check``.
+
+    Args:
+        project_name: Shown in the title.
+        verdicts: One per frame.
+        additions: For unstable frames (by name), the single additions that lock the most loose parts.
+    """
     table = Table(title=f"Stability check: {project_name}", title_justify="left")
     for head in ("frame", "verdict", "racking modes", "braces", "ties", "braces + ties/2", "critical"):
         table.add_column(head, justify="left" if head in {"frame", "verdict"} else "right")
@@ -53,7 +71,76 @@ def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
             lines.append(f"{v.frame}: {describe_part(part, anchor)}")
         if v.critical_members:
             lines.append(f"{v.frame}: critical (single loss makes it unstable): {_members_text(v.critical_members)}")
+        advice = (additions or {}).get(v.frame)
+        if advice is not None:
+            lines.extend(_additions_lines(advice))
     lines.append("")
+    lines.append(f"Caution: {CAUTION}")
+    return "\n".join(lines) + "\n"
+
+
+def _additions_lines(advice: AdditionAdvice) -> list[str]:
+    name = advice.frame
+    if not advice.most:
+        return [f"{name}: no single member locks a loose part on its own ({advice.candidates} candidates tried)"]
+    lines = [
+        f"{name}: best single additions ({advice.candidates} candidates tried, {advice.racking_modes} loose parts):"
+    ]
+    lines += [f"  {addition_words(a)}" for a in advice.most]
+    if [a.member for a in advice.per_cost] != [a.member for a in advice.most]:
+        lines.append(f"{name}: most loose parts per unit cost:")
+        lines += [f"  {addition_words(a)}, {a.per_cost:.3f} parts per unit" for a in advice.per_cost]
+    return lines
+
+
+def render_robustness(project_name: str, results: Sequence[Robustness], *, ranking: int = 10) -> str:
+    """Human-readable result of ``bracegrid robustness``.
+
+    Args:
+        project_name: Shown in the titles.
+        results: One per frame.
+        ranking: Members listed in each frame's ranking.
+
+    Returns:
+        Per frame: the curve table, the expected losses to a mechanism, the member ranking; then
+        the model's limits and the caution.
+    """
+    lines = [f"Robustness: {project_name}", ""]
+    for r in results:
+        table = Table(title=f"{r.frame}: members lost at random", title_justify="left")
+        for head in ("lost", "P(stable)", "95% interval", "how"):
+            table.add_column(head, justify="left" if head == "how" else "right")
+        for p in r.curve:
+            span = "-" if p.exact else f"{p.low:.4f} - {p.high:.4f}"
+            how = "exact" if p.exact else f"Monte Carlo, {r.samples} samples"
+            table.add_row(str(p.lost), f"{p.p_stable:.4f}", span, how)
+        lines.append(render_table(table))
+        e = r.expected_losses
+        if not r.stable:
+            lines.append(f"{r.frame}: not stable before any loss; `bracegrid check` lists the additions that help most")
+        elif e is None:
+            lines.append(f"{r.frame}: never gets a mechanism: the members never lost hold it on their own")
+        else:
+            how = "exact" if e.exact else f"95% interval {e.low:.2f} - {e.high:.2f}, Monte Carlo"
+            lines.append(f"{r.frame}: expected losses to the first mechanism {e.value:.2f} ({how})")
+        lines.append(f"{r.frame}: {r.members} members, {r.losable} can be lost; seed {r.seed}")
+        if not r.likelihood.uniform:
+            weights = ", ".join(f"{k.value} {r.likelihood.weight(k):g}" for k in MemberKind)
+            lines.append(f"{r.frame}: losses weighted by kind ({weights})")
+        if r.ranking and all(d.critical for d in r.ranking):
+            lines.append(f"{r.frame}: every member is critical: losing any one leaves a mechanism")
+        elif r.ranking:
+            lines.append(
+                f"{r.frame}: members whose absence lowers the curve most (mean drop over k = 1..{len(r.curve)}, "
+                f"{r.ranking_samples} paired samples each):"
+            )
+            for d in r.ranking[:ranking]:
+                tag = " (critical)" if d.critical else ""
+                lines.append(
+                    f"  {d.member.kind.value} {d.member.label}{tag}: {d.drop:.4f} ({d.low:.4f} - {d.high:.4f})"
+                )
+        lines.append("")
+    lines.append(f"Limits: {ROBUSTNESS_LIMITS}")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
 
