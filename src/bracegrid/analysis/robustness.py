@@ -205,17 +205,22 @@ class Robustness:
 
 
 def clopper_pearson(successes: int, trials: int) -> tuple[float, float]:
-    """The 95% Clopper-Pearson ("exact") interval of a binomial proportion, via scipy.
+    """The 95% Clopper-Pearson ("exact") interval of a binomial proportion.
 
-    Its coverage is at least 95% for every true proportion (Clopper and Pearson 1934).
+    Its ends are beta quantiles, ``Beta(a/2; x, n - x + 1)`` and ``Beta(1 - a/2; x + 1, n - x)``
+    (scipy.stats.beta), the closed form of the interval; its coverage is at least 95% for every
+    true proportion (Clopper and Pearson 1934). scipy's ``binomtest(...).proportion_ci(method="exact")``
+    gives the same ends by root finding (checked in the tests), at about a hundred times the cost.
 
     Example:
         >>> lo, hi = clopper_pearson(50, 100)
         >>> round(lo, 4), round(hi, 4)
         (0.3983, 0.6017)
     """
-    ci = stats.binomtest(successes, trials).proportion_ci(confidence_level=CONFIDENCE, method="exact")
-    return float(ci.low), float(ci.high)
+    alpha = 1.0 - CONFIDENCE
+    low = 0.0 if successes == 0 else float(stats.beta.ppf(alpha / 2, successes, trials - successes + 1))
+    high = 1.0 if successes == trials else float(stats.beta.ppf(1 - alpha / 2, successes + 1, trials - successes))
+    return low, high
 
 
 def student_interval(values: FloatArray) -> tuple[float, float, float]:
@@ -297,20 +302,60 @@ class _Job:
     removed: int
 
 
+def _losses(layout: _Layout, clocks: FloatArray, *, removed: int = -1) -> IntArray:
+    """T per sample from loss clocks (members, samples): members lost up to the first mechanism.
+
+    The frame fails when the clock passes the bottleneck of the arcs' loss times; T counts the
+    members (other than ``removed``) whose clocks are not above it. Never fails: losable + 1.
+    """
+    fail = strong_bottleneck(layout.arcs, _deaths(layout, clocks))
+    losses = (clocks <= fail[None, :]).sum(axis=0) - (1 if removed >= 0 else 0)
+    losable = int((layout.weights > 0).sum()) - (1 if removed >= 0 and layout.weights[removed] > 0 else 0)
+    out: IntArray = np.where(np.isposinf(fail), losable + 1, losses).astype(np.int64)
+    return out
+
+
+def losses_to_mechanism(frame: Frame, members: Sequence[Member], orders: IntArray) -> IntArray:
+    """For given loss orders, how many members go before the frame first has a mechanism.
+
+    Args:
+        frame: Sizes and supports.
+        members: The layout.
+        orders: Shape (orders, members): each row lists every member index once, first lost first.
+
+    Returns:
+        Shape (orders,): T of each order (0 if the layout is not stable to begin with).
+
+    Raises:
+        InputError: If a row is not a permutation of the member indices.
+
+    Example:
+        >>> from bracegrid.model import Diagonal, MemberKind
+        >>> t = MemberKind.TIE
+        >>> x = [Member(1, 1, t, Diagonal.RISING), Member(1, 1, t, Diagonal.FALLING),
+        ...      Member(1, 2, MemberKind.BRACE, Diagonal.RISING)]
+        >>> losses_to_mechanism(Frame("f", (3000, 3000), (2000,)), x, np.array([[0, 2, 1], [2, 0, 1]])).tolist()
+        [1, 1]
+    """
+    count = len(members)
+    rows = np.asarray(orders, dtype=np.int64)
+    if rows.ndim != 2 or rows.shape[1] != count or not (np.sort(rows, axis=1) == np.arange(count)).all():
+        msg = f"orders: each row must list the {count} member indices 0..{count - 1} once each"
+        raise InputError(msg)
+    clocks = np.empty((count, rows.shape[0]))
+    clocks[rows.T, np.arange(rows.shape[0])[None, :]] = np.arange(1, count + 1, dtype=np.float64)[:, None]
+    return _losses(_layout(frame, members, LossLikelihood()), clocks)
+
+
 def _run(job: _Job) -> IntArray:
     """T of every sample of a chunk: losses (among the members left) at the first mechanism.
 
     A frame that never gets a mechanism gets T = losable + 1.
     """
-    layout = job.layout
-    clocks = _clocks(np.random.default_rng(job.seed), job.count, layout.weights)
+    clocks = _clocks(np.random.default_rng(job.seed), job.count, job.layout.weights)
     if job.removed >= 0:
         clocks[job.removed] = -np.inf
-    fail = strong_bottleneck(layout.arcs, _deaths(layout, clocks))
-    losses = (clocks <= fail[None, :]).sum(axis=0) - (1 if job.removed >= 0 else 0)
-    losable = int((layout.weights > 0).sum()) - (1 if job.removed >= 0 and layout.weights[job.removed] > 0 else 0)
-    out: IntArray = np.where(np.isposinf(fail), losable + 1, losses).astype(np.int64)
-    return out
+    return _losses(job.layout, clocks, removed=job.removed)
 
 
 def _execute(jobs: Sequence[_Job], workers: int, on_progress: ProgressCallback | None) -> list[IntArray]:
