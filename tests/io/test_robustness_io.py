@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import re
+from pathlib import Path
+
 import pytest
 
 from bracegrid.errors import InputError
@@ -70,3 +73,11 @@ def test_table_helpers() -> None:
     assert read_robustness(5)[1] == ["[robustness]: expected a table, got int"]
     table = robustness_table(LossLikelihood(brace=0.0, tie=2.0))
     assert table == {"loss_likelihood": {k.value: LossLikelihood(brace=0.0, tie=2.0).weight(k) for k in MemberKind}}
+
+
+def test_the_documented_example_reads() -> None:
+    # docs/project-file.md shows every field in one example file; it must stay a valid project.
+    doc = (Path(__file__).resolve().parents[2] / "docs" / "project-file.md").read_text(encoding="utf-8")
+    match = re.search(r"```toml\n(.+?)```", doc, re.DOTALL)
+    assert match is not None
+    assert parse_project(match.group(1)).loss_likelihood == LossLikelihood(brace=1.0, tie=3.0)

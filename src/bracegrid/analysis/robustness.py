@@ -64,12 +64,14 @@ _CHUNK_CELLS = 1 << 21
 _MAX_CHUNK = 2048
 _MIN_CHUNK = 16
 
-#: Work (samples x (arcs + members)) above which starting worker processes pays: about a second
-#: of work on one core, against roughly half a second to start a process and import numpy/scipy.
-_POOL_WORK = 2e7
+#: Work (samples x (arcs + members)) above which worker processes are started: about 4 s of work on
+#: one core (benchmarks/bench_robustness.py), against 1-2 s for a process to start and import
+#: numpy, scipy and bracegrid; below it one process is as fast.
+_POOL_WORK = 1e8
 
-#: Fewest samples behind each member's entry in the ranking.
-_MIN_RANKING_SAMPLES = 1000
+#: Fewest samples behind each member's entry in the ranking; otherwise the ranking as a whole gets
+#: twice the samples of the curve, shared among the members (so it costs about twice the curve).
+_MIN_RANKING_SAMPLES = 200
 
 ProgressCallback = Callable[[int, int], None]
 
