@@ -441,7 +441,7 @@ def build_parser() -> argparse.ArgumentParser:
         "robustness",
         help="probability of staying stable as members go missing at random; which members matter most",
         description="For k = 1..K members lost at random (uniformly, or weighted by [robustness.loss_likelihood] "
-        "in the project file), the probability that each frame stays free of mechanisms, with 95%% intervals "
+        "in the project file), the probability that each frame stays free of mechanisms, with 95% intervals "
         "(exact where enumeration is cheap, Monte Carlo otherwise), the expected number of losses until the "
         "first mechanism, and for a stable frame the members whose absence lowers the curve most. Writes the "
         "plot as PNG and SVG.",

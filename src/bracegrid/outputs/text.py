@@ -114,10 +114,11 @@ def render_robustness(project_name: str, results: Sequence[Robustness], *, ranki
             span = "-" if p.exact else f"{p.low:.4f} - {p.high:.4f}"
             how = "exact" if p.exact else f"Monte Carlo, {r.samples} samples"
             table.add_row(str(p.lost), f"{p.p_stable:.4f}", span, how)
-        lines.append(render_table(table))
+        if r.curve:
+            lines.append(render_table(table))
         e = r.expected_losses
         if not r.stable:
-            lines.append(f"{r.frame}: not stable before any loss; `bracegrid check` lists the additions that help most")
+            lines.append(f"{r.frame}: not stable before any loss; the stability check lists the single additions that help most")
         elif e is None:
             lines.append(f"{r.frame}: never gets a mechanism: the members never lost hold it on their own")
         else:
