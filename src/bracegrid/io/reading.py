@@ -20,6 +20,7 @@ from typing import Any, TypeVar
 from shapely.geometry import box
 from shapely.validation import explain_validity
 
+import bracegrid.io.loads as loads
 from bracegrid.errors import InputError
 from bracegrid.model import (
     CostCatalogue,
@@ -38,11 +39,11 @@ from bracegrid.units import MM_PER_UNIT, parse_length
 
 _PROJECT_KEYS = {"name", "length_unit"}
 _COST_KEYS = {*(k.value for k in MemberKind), "contingency_pct"}
-_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"}
+_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-}  # fmt: skip
+} | loads.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -430,7 +431,7 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
         raise InputError(msg, source=source) from None
     col = _Collector()
     lines = _Lines.scan(text)
-    col.unknown_keys("top level", data, {"project", "costs", "frame"})
+    col.unknown_keys("top level", data, {"project", "costs", "frame"} | loads.TOP_KEYS)
     head = col.table("[project]", data.get("project", {}))
     name = "untitled"
     unit = "m"
@@ -454,13 +455,14 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
     for index, raw in enumerate(raw_frames):
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
-            frames.append(got)
+            frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
+    strength = loads.read_strength(col, data, frames)
     if col.problems or costs is None:
         raise InputError(col.problems or ["costs could not be read"], source=source)
-    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source)
+    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source, strength=strength)
 
 
 def load_project(path: str | Path) -> Project:
