@@ -1,7 +1,8 @@
 """Command-line shell over the library. The only module that prints.
 
-Exit codes: 0 success (stable), 1 not stable, 2 bad input, 3 proven
-infeasible, 4 solver limit reached with no layout, 70 internal error.
+Exit codes: 0 success (stable; for ``forces``: within capacity), 1 not stable (for
+``forces``: over capacity or a mechanism), 2 bad input, 3 proven infeasible, 4 solver limit
+reached with no layout, 70 internal error.
 """
 
 from __future__ import annotations
@@ -17,7 +18,7 @@ from typing import Any, TextIO, TypeVar
 from rich.progress import Progress
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, check_frame
+from bracegrid.analysis import CAUTION, check_frame, remove_members
 from bracegrid.compare import StrategyKey, compare_project
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
@@ -29,6 +30,7 @@ from bracegrid.io import (
     save_project,
     write_outputs,
 )
+from bracegrid.mechanics import FrameForces, analyse_frame
 from bracegrid.model import Frame, MemberKind, Project
 from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
@@ -36,12 +38,16 @@ from bracegrid.outputs import (
     check_dict,
     compare_dict,
     dxf_bytes,
+    force_summary_lines,
+    forces_dict,
     optimize_dict,
     parse_formats,
     progress_line,
     render_check,
     render_compare,
     render_compare_csv,
+    render_force_files,
+    render_forces,
     render_html,
     render_optimize,
     render_outputs,
@@ -104,11 +110,17 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     target = _without_frame(project, args)
     taken = _flagged("--without", lambda: parse_member_refs(target, args.without)) if target is not None else ()
-    verdicts = [check_frame(f, without=taken if f is target else ()) for f in _frames(project, args.frame)]
+    chosen = _frames(project, args.frame)
+    verdicts = [check_frame(f, without=taken if f is target else ()) for f in chosen]
+    forces = {
+        f.name: analyse_frame(f, project.strength, members=remove_members(f, taken if f is target else ()))
+        for f in chosen
+        if f.loads
+    }
     if args.json:
-        _emit(out, check_dict(verdicts))
+        _emit(out, check_dict(verdicts, forces=forces))
     else:
-        out.write(render_check(project.name, verdicts))
+        out.write(render_check(project.name, verdicts, notes=force_summary_lines(list(forces.values()))))
         if target is not None and not all(v.stable for v in verdicts):
             refs = " ".join(args.without)
             out.write(
@@ -140,6 +152,40 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
         out.write(f"wrote {path}\n")
     out.write(f"Caution: {CAUTION}\n")
     return EXIT_OK
+
+
+def _cmd_forces(args: argparse.Namespace, out: TextIO) -> int:
+    formats = _flagged("--format", lambda: parse_formats(args.format))
+    project = load_project(args.project)
+    frames = [f for f in _frames(project, args.frame) if f.loads]
+    if args.case is not None:
+        frames = [f for f in frames if any(c.name == args.case for c in f.loads)]
+    if not frames:
+        where = f"frame {args.frame!r}" if args.frame else "the project"
+        what = f"no load case named {args.case!r}" if args.case else "no load cases"
+        msg = (
+            f"{args.project}: {where} has {what}; add [[frame.load]] tables with name and horizontal "
+            "(see docs/project-file.md)"
+        )
+        raise InputError(msg)
+    folder = _flagged("--out", lambda: check_out_folder(Path(args.out))) if args.out else None
+    cases = [args.case] if args.case is not None else None
+    results: list[FrameForces] = [analyse_frame(f, project.strength, cases=cases) for f in frames]
+    written: tuple[Path, ...] = ()
+    if folder is not None:
+        _, files = render_force_files(
+            project, results, stem=Path(args.project).stem, formats=formats, when=date.today()
+        )
+        written = write_outputs(folder, files)
+    if args.json:
+        payload = forces_dict(results)
+        payload["files"] = [str(p) for p in written]
+        _emit(out, payload)
+    else:
+        out.write(render_forces(project.name, results))
+        for path in written:
+            out.write(f"wrote {path}\n")
+    return EXIT_OK if all(r.ok for r in results) else EXIT_UNSTABLE
 
 
 def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
@@ -333,6 +379,23 @@ def build_parser() -> argparse.ArgumentParser:
         help="survive the loss of any K members (1 = N-1; default: each frame's 'redundancy')",
     )  # fmt: skip
     opt.set_defaults(handler=_cmd_optimize)
+
+    frc = sub.add_parser(
+        "forces",
+        help="member forces, reactions and sway under each load case (tension-only ties), utilisation",
+        description="Analyse every frame with load cases as a pin-jointed bar framework (direct stiffness, "
+        "ties in tension only): the force in every diagonal, standard and ledger, support reactions and uplift, "
+        "the sway of every line and each lift's drift, and each member's utilisation against its capacity. "
+        "Exit code 0 when everything is within capacity, 1 when something is over or a case finds a mechanism.",
+    )
+    _add_common(frc)
+    frc.add_argument("--case", metavar="NAME", help="only this load case (both senses if it reverses)")
+    frc.add_argument("--out", metavar="DIR", help="write the member-force CSV and the force sheets into this folder")
+    frc.add_argument(
+        "--format", default="dxf,png", metavar="LIST",
+        help="force sheet formats with --out, comma-separated: dxf, svg, png, pdf (default: dxf,png)",
+    )  # fmt: skip
+    frc.set_defaults(handler=_cmd_forces)
 
     cmp_ = sub.add_parser(
         "compare",

@@ -31,7 +31,7 @@ FRAME_KEYS = {"load", "held_edges"}
 #: Top-level tables added by the force analysis.
 TOP_KEYS = {"grid"}
 _GRID_KEYS = {"ea_kn", "standard_kn", "ledger_kn", "uplift_kn"}
-_LOAD_KEYS = {"name", "horizontal", "vertical", "reverse"}
+_LOAD_KEYS = {"name", "horizontal", "vertical", "gravity", "point", "reverse"}
 
 #: Largest force or capacity accepted, kN: far above any frame bracegrid is meant for, and small
 #: enough that products of forces and millimetre lengths stay exact in double precision.
@@ -207,16 +207,58 @@ def _read_load(col: Problems, where: str, raw: object, frame: Frame) -> LoadCase
     if "vertical" in raw:
         vertical = _line_values(col, f"{where}.vertical", raw["vertical"], (c_count + 1,),
                                 f"one per vertical grid line 0..{c_count}")  # fmt: skip
-    if "horizontal" not in raw and "vertical" not in raw:
+    gravity: list[float] | None = []
+    if "gravity" in raw:
+        gravity = _line_values(col, f"{where}.gravity", raw["gravity"], (c_count + 1,),
+                               f"downwards, one per vertical grid line 0..{c_count}")  # fmt: skip
+        if frame.held_edges:
+            col.add(f"{where}.gravity", "a plan grid with held edges lies flat: weight acts out of its plane; "
+                    "remove gravity (use vertical for in-plane forces along the vertical grid lines)")  # fmt: skip
+            gravity = None
+    points: list[tuple[int, int, float, float]] | None = []
+    if "point" in raw:
+        points = _points(col, f"{where}.point", raw["point"], frame)
+    if not any(k in raw for k in ("horizontal", "vertical", "gravity", "point")):
         col.add(where, f"no forces: add horizontal = [...] (kN along horizontal grid lines 1..{r_count})")
         return None
     reverse = raw.get("reverse", False)
     if not isinstance(reverse, bool):
         col.add(f"{where}.reverse", f"expected true or false, got {reverse!r}")
         return None
-    if name is None or horizontal is None or vertical is None:
+    if name is None or horizontal is None or vertical is None or points is None or gravity is None:
         return None
-    return LoadCase(name=name, horizontal_kn=tuple(horizontal), vertical_kn=tuple(vertical), reverse=reverse)
+    return LoadCase(
+        name=name, horizontal_kn=tuple(horizontal), vertical_kn=tuple(vertical), reverse=reverse,
+        point_kn=tuple(points), gravity_kn=tuple(gravity),
+    )  # fmt: skip
+
+
+def _points(col: Problems, where: str, raw: object, frame: Frame) -> list[tuple[int, int, float, float]] | None:
+    form = "[[p, q, fx, fy], ...] (node on horizontal line p and vertical line q; kN)"
+    if not isinstance(raw, list):
+        col.add(where, f"expected {form}, got {raw!r}")
+        return None
+    out = []
+    for k, item in enumerate(raw, start=1):
+        here = f"{where}[{k}]"
+        if not isinstance(item, list) or len(item) != 4:
+            col.add(here, f"expected [p, q, fx, fy], got {item!r}")
+            return None
+        p, q, fx, fy = item
+        if not all(isinstance(v, int) and not isinstance(v, bool) for v in (p, q)):
+            col.add(here, f"p and q must be whole numbers, got {p!r}, {q!r}")
+            return None
+        if not (0 <= p <= frame.rows and 0 <= q <= frame.cols):
+            col.add(here, f"node ({p}, {q}) is outside the frame; p runs 0..{frame.rows}, q runs 0..{frame.cols}")
+            return None
+        forces = []
+        for v in (fx, fy):
+            if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(float(v)) or abs(v) > MAX_KN:
+                col.add(here, f"fx and fy must be forces in kN (at most {MAX_KN:g}), got {v!r}")
+                return None
+            forces.append(float(v))
+        out.append((p, q, forces[0], forces[1]))
+    return out
 
 
 def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, index: int, text: str) -> Frame:
@@ -247,6 +289,7 @@ def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, inde
     if held and frame.supports is Supports.BASE:
         col.add(f"{where}.held_edges", "a frame on a pinned base is held by its base; held edges are for plan "
                 "grids (supports = \"free\"); remove held_edges or set supports = \"free\"")  # fmt: skip
+    frame = dataclasses.replace(frame, held_edges=frozenset(held))
     cases: list[LoadCase] = []
     raw_loads = raw.get("load", [])
     if not isinstance(raw_loads, list):
@@ -265,7 +308,7 @@ def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, inde
     if cases and frame.supports is Supports.FREE and not held:
         col.add(f"{where}.load", "the frame has load cases but nothing holds it: set supports = \"base\", or "
                 "list the edges wall lines hold in held_edges (e.g. [\"left\", \"right\", \"bottom\"])")  # fmt: skip
-    return dataclasses.replace(frame, loads=tuple(cases), held_edges=frozenset(held))
+    return dataclasses.replace(frame, loads=tuple(cases))
 
 
 # --------------------------------------------------------------------------- writing
@@ -300,7 +343,11 @@ def frame_load_fields(frame: Frame) -> dict[str, Any]:
             item["horizontal"] = [float(v) for v in (h[1:] if h[0] == 0.0 else h)]
         if case.vertical_kn and any(case.vertical_kn):
             item["vertical"] = [float(v) for v in case.vertical_kn]
-        if "horizontal" not in item and "vertical" not in item:
+        if case.gravity_kn and any(case.gravity_kn):
+            item["gravity"] = [float(v) for v in case.gravity_kn]
+        if case.point_kn:
+            item["point"] = [[p, q, float(fx), float(fy)] for p, q, fx, fy in case.point_kn]
+        if not any(k in item for k in ("horizontal", "vertical", "gravity", "point")):
             item["horizontal"] = [0.0] * frame.rows
         if case.reverse:
             item["reverse"] = True

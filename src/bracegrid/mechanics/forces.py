@@ -335,6 +335,7 @@ class _Solver:
             load_kn=total,
             residual_kn=residual,
             steps=eq.steps,
+            node_displacement_mm=tuple((u + 0.0).tolist()),
         )
 
 

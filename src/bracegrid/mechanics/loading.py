@@ -3,7 +3,9 @@
 A horizontal grid line's load H_p (kN, + to the right) goes to its nodes in proportion to the
 width each node collects: the node on vertical line q takes (w_q + w_{q+1}) / (2 W) of it, with
 w_0 = w_{C+1} = 0 and W the frame's width. A vertical grid line's load G_q (kN, + upwards) goes to
-its nodes by tributary height in the same way. The total on each line is kept exactly.
+its nodes by tributary height in the same way. The total on each line is kept exactly. Point
+loads go to their node as given. Reversing a case reverses every force but the weight
+(``gravity``), which acts downwards in both senses.
 """
 
 from __future__ import annotations
@@ -48,4 +50,12 @@ def nodal_loads(frame: Frame, case: LoadCase, sense: LoadSense = LoadSense.PLUS)
         if load:
             for p in range(frame.rows + 1):
                 out[2 * node_index(frame, p, q) + 1] += factor * load * along_y[p]
+    for q, load in enumerate(case.gravity_kn):
+        if load:
+            for p in range(frame.rows + 1):
+                out[2 * node_index(frame, p, q) + 1] -= load * along_y[p]  # weight: down in either sense
+    for p, q, fx, fy in case.point_kn:
+        n = node_index(frame, p, q)
+        out[2 * n] += factor * fx
+        out[2 * n + 1] += factor * fy
     return out

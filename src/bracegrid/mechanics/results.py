@@ -163,6 +163,7 @@ class CaseForces:
         load_kn: Sum of |nodal load| of the case (the reference of the residual).
         residual_kn: Largest out-of-balance force at any unsupported degree of freedom.
         steps: Newton steps taken.
+        node_displacement_mm: Displacement of every node (x, y in turn, framework node order).
     """
 
     case: str
@@ -177,6 +178,7 @@ class CaseForces:
     load_kn: float
     residual_kn: float
     steps: int
+    node_displacement_mm: tuple[float, ...] = ()
 
     @property
     def title(self) -> str:

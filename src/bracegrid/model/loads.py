@@ -25,12 +25,19 @@ class LoadCase:
         vertical_kn: Force along each vertical grid line 0..C (C + 1 values), + = upwards; empty
             when the case has none.
         reverse: The case also acts with every force reversed.
+        point_kn: Forces at single nodes: (p, q, fx, fy) for the node on horizontal line p and
+            vertical line q, kN, + to the right and upwards.
+        gravity_kn: Downward force along each vertical grid line 0..C (C + 1 values, + = down),
+            spread by tributary height like ``vertical_kn`` but never reversed: the weight that
+            acts with the case in either sense. Empty when the case has none.
     """
 
     name: str
     horizontal_kn: tuple[float, ...]
     vertical_kn: tuple[float, ...] = ()
     reverse: bool = False
+    point_kn: tuple[tuple[int, int, float, float], ...] = ()
+    gravity_kn: tuple[float, ...] = ()
 
     @property
     def senses(self) -> tuple[LoadSense, ...]:

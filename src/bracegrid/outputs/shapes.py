@@ -6,11 +6,12 @@ tools read are fixed (see docs/). Values are Python scalars, never numpy ones.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from typing import Any
 
 from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part
 from bracegrid.compare import Comparison
+from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
 from bracegrid.model import Member, MemberKind
 from bracegrid.optimize import FrameSolution, ProjectSolution
 
@@ -45,13 +46,15 @@ def verdict_dict(verdict: Verdict) -> dict[str, Any]:
     }
 
 
-def check_dict(verdicts: Sequence[Verdict]) -> dict[str, Any]:
-    """The JSON object of ``bracegrid check``."""
-    return {
-        "stable": all(v.stable for v in verdicts),
-        "frames": [verdict_dict(v) for v in verdicts],
-        "caution": CAUTION,
-    }
+def check_dict(verdicts: Sequence[Verdict], *, forces: Mapping[str, FrameForces] | None = None) -> dict[str, Any]:
+    """The JSON object of ``bracegrid check`` (frames with load cases gain a ``forces`` summary)."""
+    frames = []
+    for v in verdicts:
+        item = verdict_dict(v)
+        if forces and v.frame in forces:
+            item["forces"] = force_summary_dict(forces[v.frame])
+        frames.append(item)
+    return {"stable": all(v.stable for v in verdicts), "frames": frames, "caution": CAUTION}
 
 
 def solution_counts(solution: FrameSolution) -> dict[str, Any]:
@@ -160,5 +163,114 @@ def compare_dict(comparison: Comparison) -> dict[str, Any]:
     return {
         "project": comparison.project.name,
         "frames": [{"name": name, "strategies": items} for name, items in frames.items()],
+        "caution": CAUTION,
+    }
+
+
+# --------------------------------------------------------------------------- member forces
+
+
+def _r(value: float | None, digits: int = 6) -> float | None:
+    return None if value is None else round(float(value), digits) + 0.0
+
+
+def member_force_dict(m: MemberForce) -> dict[str, Any]:
+    """One bar's force as JSON (fixed keys: kind, row/col/diagonal or line/row or line/col, force_kn, utilisation).
+
+    Example:
+        >>> from bracegrid.mechanics import BarKind, MemberForce
+        >>> member_force_dict(MemberForce(BarKind.STANDARD, 3, 2, None, None, -12.5, 40.0, 0.3125))
+        {'kind': 'standard', 'line': 3, 'row': 2, 'force_kn': -12.5, 'utilisation': 0.3125, 'capacity_kn': 40.0}
+    """
+    out: dict[str, Any] = {"kind": m.kind.value}
+    if m.kind is BarKind.STANDARD:
+        out |= {"line": m.line, "row": m.row}
+    elif m.kind is BarKind.LEDGER:
+        out |= {"line": m.line, "col": m.col}
+    else:
+        out |= {"row": m.row, "col": m.col, "diagonal": m.diagonal.value if m.diagonal else None}
+    out |= {"force_kn": _r(m.force_kn), "utilisation": _r(m.utilisation), "capacity_kn": m.capacity_kn}
+    if m.kind is BarKind.TIE:
+        out["slack"] = m.slack
+    return out
+
+
+def reaction_dict(r: Reaction) -> dict[str, Any]:
+    """One support reaction as JSON (fixed keys: line, fx_kn, fy_kn)."""
+    out: dict[str, Any] = {
+        "line": r.line,
+        "fx_kn": _r(r.fx_kn),
+        "fy_kn": _r(r.fy_kn),
+        "support": r.support,
+        "p": r.p,
+        "q": r.q,
+    }
+    if r.support == "base":
+        out |= {"uplift_kn": _r(r.uplift_kn), "uplift_limit_kn": r.uplift_limit_kn, "uplift_over": r.uplift_over}
+    return out
+
+
+def case_forces_dict(c: CaseForces) -> dict[str, Any]:
+    """One load case in one sense as JSON (fixed keys: name, sense, mechanism, members, reactions, sway_mm)."""
+    governing = c.governing
+    return {
+        "name": c.case,
+        "sense": c.sense.value,
+        "mechanism": c.is_mechanism,
+        "members": [member_force_dict(m) for m in c.members],
+        "reactions": [reaction_dict(r) for r in c.reactions],
+        "sway_mm": [_r(s) for s in c.sway_mm],
+        "drift": [_r(d, 9) for d in c.drift],
+        "sway_y_mm": [_r(s) for s in c.sway_y_mm],
+        "ok": c.ok,
+        "max_utilisation": _r(c.max_utilisation),
+        "governing": None if governing is None else member_force_dict(governing),
+        "over_capacity": [member_force_dict(m) for m in c.over_capacity],
+        "uplift_over": [reaction_dict(r) for r in c.uplift_over],
+        "slack_ties": len(c.slack_ties),
+        "mechanism_kind": c.mechanism.kind.value if c.mechanism else None,
+        "mechanism_description": list(c.mechanism.words) if c.mechanism else [],
+        "load_kn": _r(c.load_kn),
+        "residual_kn": c.residual_kn,
+        "newton_steps": c.steps,
+    }
+
+
+def force_summary_dict(ff: FrameForces) -> dict[str, Any]:
+    """A frame's force results in brief (for ``check --json``)."""
+    governing = ff.governing
+    return {
+        "ok": ff.ok,
+        "max_utilisation": _r(ff.max_utilisation),
+        "max_drift": _r(ff.max_drift, 9),
+        "governing": None if governing is None else {**member_force_dict(governing.member), "case": governing.case},
+        "mechanism_cases": [c.title for c in ff.mechanisms],
+    }
+
+
+def frame_forces_dict(ff: FrameForces) -> dict[str, Any]:
+    """One frame's force analysis as JSON."""
+    return {
+        "name": ff.frame,
+        "cases": [case_forces_dict(c) for c in ff.cases],
+        "envelope": [
+            {
+                **member_force_dict(e.member),
+                "max_tension_kn": _r(e.max_tension_kn),
+                "max_compression_kn": _r(e.max_compression_kn),
+                "case": e.case,
+            }
+            for e in ff.envelope
+        ],
+        **force_summary_dict(ff),
+    }
+
+
+def forces_dict(frames: Sequence[FrameForces]) -> dict[str, Any]:
+    """The JSON object of ``bracegrid forces``."""
+    return {
+        "ok": all(f.ok for f in frames),
+        "frames": [frame_forces_dict(f) for f in frames],
+        "model_limits": MODEL_LIMITS,
         "caution": CAUTION,
     }

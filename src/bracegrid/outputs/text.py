@@ -29,8 +29,8 @@ def _members_text(members: Sequence[Member], *, limit: int = 12) -> str:
     return ", ".join(labels) + more
 
 
-def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
-    """Human-readable result of ``bracegrid check``."""
+def render_check(project_name: str, verdicts: Sequence[Verdict], *, notes: Sequence[str] = ()) -> str:
+    """Human-readable result of ``bracegrid check`` (``notes``: extra lines before the caution)."""
     table = Table(title=f"Stability check: {project_name}", title_justify="left")
     for head in ("frame", "verdict", "racking modes", "braces", "ties", "braces + ties/2", "critical"):
         table.add_column(head, justify="left" if head in {"frame", "verdict"} else "right")
@@ -53,6 +53,7 @@ def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
             lines.append(f"{v.frame}: {describe_part(part, anchor)}")
         if v.critical_members:
             lines.append(f"{v.frame}: critical (single loss makes it unstable): {_members_text(v.critical_members)}")
+    lines.extend(notes)
     lines.append("")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
