@@ -135,6 +135,9 @@ def force_summary_lines(frames: Sequence[FrameForces]) -> list[str]:
     """
     out = []
     for ff in frames:
+        if len(ff.mechanisms) == len(ff.cases):
+            out.append(f"{ff.frame}: no member forces: MECHANISM under {', '.join(c.title for c in ff.mechanisms)}")
+            continue
         g = ff.governing
         where = f" ({g.member.label}, {g.case})" if g is not None and g.member.utilisation is not None else ""
         util = util_text(ff.max_utilisation)

@@ -149,6 +149,9 @@ def compare_rows(comparison: Comparison) -> list[dict[str, Any]]:
                     "gap": s.gap,
                     "seconds": s.seconds,
                     "note": s.note,
+                    "max_utilisation": _r(s.forces.max_utilisation) if s.forces else None,
+                    "max_drift": _r(s.forces.max_drift, 9) if s.forces else None,
+                    "carries_loads": s.forces.ok if s.forces else None,
                 }
             )
     return rows

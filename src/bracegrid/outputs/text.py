@@ -11,6 +11,7 @@ from rich.table import Table
 
 from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part, redundancy_words
 from bracegrid.compare import Comparison, StrategyKey
+from bracegrid.mechanics import FrameForces
 from bracegrid.model import Member
 from bracegrid.optimize import ProgressEvent, ProjectSolution
 from bracegrid.outputs.shapes import compare_rows, solution_counts
@@ -128,13 +129,30 @@ def render_compare_csv(comparison: Comparison) -> str:
     return buffer.getvalue()
 
 
+def _force_cells(forces: FrameForces | None) -> tuple[str, str]:
+    """Max utilisation and max drift of a strategy's layout, as table cells."""
+    if forces is None:
+        return ("-", "-")
+    if forces.mechanisms:
+        return ("MECH.", "-")
+    util = forces.max_utilisation
+    drift = forces.max_drift
+    flag = "" if forces.ok else " !"
+    return (
+        "-" if util is None else f"{100 * util:.0f}%{flag}",
+        "-" if not drift else f"1/{round(1 / drift):,}",
+    )
+
+
 def render_compare(comparison: Comparison) -> str:
     """Human-readable comparison tables, one per frame."""
     lines = []
     for fc in comparison.frames:
         table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
+        loaded = any(s.forces is not None for s in fc.strategies)
+        extra = ("max util", "max drift") if loaded else ()
         for head in ("strategy", "status", "braces", "ties", "length m", "cost", "saving", "stable",
-                     "critical", "survives", "gap", "time s"):  # fmt: skip
+                     "critical", "survives", *extra, "gap", "time s"):  # fmt: skip
             left = head in {"strategy", "status"}
             table.add_column(head, justify="left" if left else "right", no_wrap=left)
         for s in fc.strategies:
@@ -150,10 +168,11 @@ def render_compare(comparison: Comparison) -> str:
                 "yes" if s.stable else "NO",
                 str(s.critical),
                 "-" if s.redundancy < 0 else f"{s.redundancy}",
+                *(_force_cells(s.forces) if loaded else ()),
                 "-" if s.gap is None else f"{100 * s.gap:.2f}%",
                 f"{s.seconds:.2f}",
             )
-        lines.append(render_table(table, width=130))
+        lines.append(render_table(table, width=160 if loaded else 130))
         for s in fc.strategies:
             if s.note:
                 lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
@@ -165,5 +184,9 @@ def render_compare(comparison: Comparison) -> str:
             parts.append(f"{key.value} {'-' if total is None else f'{total:.2f}'}")
         lines.append("All frames: " + ", ".join(parts))
     lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
+    if any(s.forces is not None for fc in comparison.frames for s in fc.strategies):
+        lines.append(
+            "max util / max drift: the layout under the frame's load cases (! = over capacity; bracegrid forces)"
+        )
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
