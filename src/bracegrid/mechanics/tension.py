@@ -178,6 +178,7 @@ def solve_tension_only(
     g = np.zeros(compat.shape[0])
     best = np.inf
     flat = 0
+    previous = b""
     steps = 0
     residual = float(np.abs(load).max()) if len(load) else 0.0
     while True:
@@ -186,15 +187,19 @@ def solve_tension_only(
         residual = float(np.abs(grad).max()) if len(grad) else 0.0
         if residual <= stop or steps >= MAX_STEPS:
             break
-        # stop once rounding stops the progress (three steps without halving the imbalance)
-        if residual < 0.5 * best:
-            best, flat = residual, 0
-        else:
-            flat += 1
-            if flat >= 3:
-                break
         scale = float(np.abs(g).max()) if len(g) else 0.0
         taut = ~tension_only | (g >= -TAUT_TOL * scale)
+        key = taut.tobytes()
+        # Once the taut set repeats, the steps only refine: stop when rounding stops the progress
+        # (two steps on the same set without halving the imbalance).
+        if key == previous and residual >= 0.5 * best:
+            flat += 1
+            if flat >= 2:
+                break
+        else:
+            flat = 0
+        best = min(best, residual) if key == previous else residual
+        previous = key
         direction = -newton_matrix(taut).solve(grad)
         change = compat @ direction
         step = exact_step(g, change, stiffness, tension_only, float(load @ direction))
