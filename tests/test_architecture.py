@@ -20,7 +20,8 @@ SRC = Path(bracegrid.__file__).resolve().parent
 
 #: The stages in data-flow order; a module may import only from its own stage or earlier ones.
 STAGES = (
-    "errors", "units", "_version", "model", "io", "analysis", "mechanics", "optimize", "compare", "outputs", "cli", "__main__",
+    "errors", "units", "_version", "model", "io", "analysis", "mechanics", "optimize", "compare", "outputs", "cli",
+    "__main__",
 )  # fmt: skip
 
 #: Every name ``from bracegrid import ...`` offered before the package was split (it must keep working).

@@ -48,8 +48,13 @@ def test_free_motions_count_equals_the_null_space_of_all_members_as_bars(seed: i
 @pytest.mark.parametrize("seed", range(60))
 def test_driven_motion_agrees_with_an_lp_on_the_bar_framework(seed: int) -> None:
     rng = random.Random(100 + seed)
-    frame = random_frame(rng, max_rows=4, max_cols=4, kinds=(MemberKind.TIE, MemberKind.TIE, MemberKind.BRACE),
-                         density=rng.choice([0.15, 0.3]))  # fmt: skip
+    frame = random_frame(
+        rng,
+        max_rows=4,
+        max_cols=4,
+        kinds=(MemberKind.TIE, MemberKind.TIE, MemberKind.BRACE),
+        density=rng.choice([0.15, 0.3]),
+    )
     loads = nodal_loads(frame, frame.loads[0])
     ours = driven_motion(frame, frame.members, work_coefficients(frame, loads))
     eq, ties = _bars_and_ties(frame)
@@ -59,8 +64,15 @@ def test_driven_motion_agrees_with_an_lp_on_the_bar_framework(seed: int) -> None
         return
     # v in a box; bars keep length; ties do not lengthen (a row . v is the rate of change of length^2 / 2)
     scale = float(np.abs(f).sum())
-    res = linprog(-f / scale, A_ub=ties if len(ties) else None, b_ub=np.zeros(len(ties)) if len(ties) else None,
-                  A_eq=eq, b_eq=np.zeros(len(eq)), bounds=[(-1, 1)] * len(f), method="highs")  # fmt: skip
+    res = linprog(
+        -f / scale,
+        A_ub=ties if len(ties) else None,
+        b_ub=np.zeros(len(ties)) if len(ties) else None,
+        A_eq=eq,
+        b_eq=np.zeros(len(eq)),
+        bounds=[(-1, 1)] * len(f),
+        method="highs",
+    )
     assert res.status == 0
     driven = -res.fun > 1e-6
     assert (ours is not None) == driven

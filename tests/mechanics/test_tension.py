@@ -32,9 +32,14 @@ def test_exact_step_is_the_minimiser_along_the_line(seed: int) -> None:
     slope0 = float(np.sum(bar_forces(g, k, tie) * dg))
     fd = slope0 + abs(rng.normal()) + 0.1
     a = exact_step(g, dg, k, tie, fd)
-    assert a is not None and a > 0
-    ref = minimize_scalar(lambda x: _potential(x, g, dg, k, tie, fd), bounds=(0.0, 10 * a + 10), method="bounded",
-                          options={"xatol": 1e-12})  # fmt: skip
+    assert a is not None
+    assert a > 0
+    ref = minimize_scalar(
+        lambda x: _potential(x, g, dg, k, tie, fd),
+        bounds=(0.0, 10 * a + 10),
+        method="bounded",
+        options={"xatol": 1e-12},
+    )
     assert _potential(a, g, dg, k, tie, fd) <= ref.fun + 1e-9 * (1 + abs(ref.fun))
     grid = np.linspace(0, 3 * a, 301)
     assert _potential(a, g, dg, k, tie, fd) <= min(_potential(x, g, dg, k, tie, fd) for x in grid) + 1e-12

@@ -460,7 +460,7 @@ def _draw_panel(
         if m.slack:
             ink.line(pa, pb, ForceLayer.SLACK)
             continue
-        weight = 100 if m.over else (50 if not m.kind.is_grid else 35)
+        weight = 140 if m.over else (70 if not m.kind.is_grid else 50)
         if abs(m.force_kn) <= small:
             ink.line(pa, pb, ForceLayer.MEMBER, rgb=(170, 170, 170), lineweight=18)
             continue
@@ -539,7 +539,7 @@ def _draw_scale(ink: _Ink, x: float, y: float, *, rated: bool) -> None:
     for frac in (0.0, 0.5, 0.8, 1.0):
         ink.text(f"{round(100 * frac)}%", bx + frac * bw, by - 2.2, height=H_FORCE, layer=lay, align="MIDDLE_CENTER")
     if rated:
-        ox = bx + bw + 3.0
+        ox = bx + bw + 7.0
         ink.fill([ink.at(ox, by), ink.at(ox + 8, by), ink.at(ox + 8, by + bh), ink.at(ox, by + bh)], lay, OVER_RGB)
         ink.text("> 100%", ox + 4, by - 2.2, height=H_FORCE, layer=lay, align="MIDDLE_CENTER")
     keys = [
@@ -553,7 +553,7 @@ def _draw_scale(ink: _Ink, x: float, y: float, *, rated: bool) -> None:
     for key, words in keys:
         x0, x1 = x + 4, x + 16
         if key == "over":
-            ink.line(ink.at(x0, cy), ink.at(x1, cy), lay, lineweight=100, rgb=OVER_RGB)
+            ink.line(ink.at(x0, cy), ink.at(x1, cy), lay, lineweight=140, rgb=OVER_RGB)
             ink.block(OVER_BLOCK, ink.at((x0 + x1) / 2, cy), lay, color=1)
         elif key == "slack":
             ink.line(ink.at(x0, cy), ink.at(x1, cy), lay, linetype="BG_TIE", color=8)
