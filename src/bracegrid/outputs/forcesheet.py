@@ -474,7 +474,8 @@ def _draw_panel(
         if angle > 90.0 or angle < -90.0:
             angle += 180.0
         if m.over:
-            ink.block(OVER_BLOCK, ink.model(a[0] + 0.7 * (b[0] - a[0]), a[1] + 0.7 * (b[1] - a[1])), ForceLayer.OVER)
+            ring = 0.85 if m.kind.is_grid else 0.7  # clear of the label (mid-length; 30 % on diagonals)
+            ink.block(OVER_BLOCK, ink.model(a[0] + ring * (b[0] - a[0]), a[1] + ring * (b[1] - a[1])), ForceLayer.OVER)
         if text_width(label, H_FORCE) + 1.0 <= room:
             ink.text(
                 label,
@@ -668,8 +669,8 @@ def build_force_sheet(
         pen,
         title_x,
         by,
-        project=f"{project.name}: member forces",
-        frames=[frame.name],
+        project=project.name,
+        frames=[f"{frame.name} (member forces)"],
         when=when or date.today(),
         version=__version__,
         caution=CAUTION,
