@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import webbrowser
 from collections.abc import Callable, Sequence
 from datetime import date
 from pathlib import Path
@@ -23,7 +24,6 @@ from bracegrid.compare import StrategyKey, compare_project
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
     MEMBER_REF_HELP,
-    OutputFile,
     check_out_folder,
     load_project,
     parse_member_refs,
@@ -34,10 +34,8 @@ from bracegrid.mechanics import FrameForces, analyse_frame
 from bracegrid.model import Frame, MemberKind, Project
 from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
-    build_drawing,
     check_dict,
     compare_dict,
-    dxf_bytes,
     force_summary_lines,
     forces_dict,
     optimize_dict,
@@ -45,12 +43,22 @@ from bracegrid.outputs import (
     progress_line,
     render_check,
     render_compare,
-    render_compare_csv,
+    render_compare_outputs,
     render_force_files,
     render_forces,
-    render_html,
     render_optimize,
     render_outputs,
+)
+from bracegrid.web import (
+    EditorPaths,
+    EditorSession,
+    GuardRules,
+    bind_socket,
+    bound_port,
+    check_bind_address,
+    create_app,
+    new_token,
+    serve,
 )
 
 _T = TypeVar("_T")
@@ -289,15 +297,7 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
             progress.advance(task)
 
         comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
-    today = date.today()
-    files = [OutputFile(f"{source.stem}-compare.csv", render_compare_csv(comparison).encode("utf-8"))]
-    for key in StrategyKey:
-        solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
-        if solved:
-            doc = build_drawing(project, frames=solved, when=today).doc
-            files.append(OutputFile(f"{source.stem}-{key.value}.dxf", dxf_bytes(doc)))
-    page = render_html(comparison, when=today, time_limit=args.time_limit)
-    files.append(OutputFile("report.html", page.encode("utf-8")))
+    files = render_compare_outputs(comparison, stem=source.stem, when=date.today(), time_limit=args.time_limit)
     written = write_outputs(folder, files)
     if args.json:
         payload = compare_dict(comparison)
@@ -307,6 +307,34 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
         out.write(render_compare(comparison))
         for path in written:
             out.write(f"wrote {path}\n")
+    return EXIT_OK
+
+
+def _cmd_edit(args: argparse.Namespace, out: TextIO) -> int:
+    host, loopback = _flagged("--bind", lambda: check_bind_address(args.bind))
+    paths = _flagged("--out", lambda: EditorPaths.beside(args.project, out=args.out))
+    session = EditorSession(paths)  # reads and validates the project: bad input stops here
+    sock = _flagged("--port", lambda: bind_socket(host, args.port))
+    rules = GuardRules.bound(host, bound_port(sock), new_token())
+    url = rules.url()
+    out.write(f"{url}\n")
+    out.flush()
+    if not loopback:
+        sys.stderr.write(
+            f"warning: the editor listens on {host}, not only on this computer: anyone who can reach that "
+            "address and learns the URL can read and change the project. Use it only on a network you trust.\n"
+        )
+    sys.stderr.write(f"editing {paths.project} (backup {paths.backup.name}, outputs in {paths.out}); Ctrl-C stops\n")
+    sys.stderr.flush()
+    if not args.no_browser:
+        webbrowser.open(url)
+    try:
+        serve(create_app(session, rules), sock)
+    except KeyboardInterrupt:  # a second Ctrl-C, or the signal raised again after a clean shutdown
+        pass
+    finally:
+        sock.close()
+    out.write("stopped\n")
     return EXIT_OK
 
 
@@ -408,6 +436,25 @@ def build_parser() -> argparse.ArgumentParser:
     cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
     cmp_.set_defaults(handler=_cmd_compare)
+
+    edit = sub.add_parser(
+        "edit",
+        help="edit the layout in the browser: click bays, see the verdict live, optimize, save back",
+        description="Start a local editor for the project and open it in the browser. The first line printed is "
+        "the page's URL with its access token. Only the project file, its backup (NAME.toml.bak) and the output "
+        "folder are touched. Ctrl-C stops it.",
+    )
+    edit.add_argument("project", help="project file (TOML)")
+    edit.add_argument("--port", type=int, default=0, metavar="N", help="port to listen on (default 0: any free port)")
+    edit.add_argument("--no-browser", action="store_true", help="print the URL only; do not open a browser")
+    edit.add_argument(
+        "--out", metavar="DIR", help="folder for compare files and saved copies (default: <project>-edit)"
+    )
+    edit.add_argument(
+        "--bind", default="127.0.0.1", metavar="ADDRESS",
+        help="address to listen on (default 127.0.0.1, this computer only; another address prints a warning)",
+    )  # fmt: skip
+    edit.set_defaults(handler=_cmd_edit)
     return parser
 
 

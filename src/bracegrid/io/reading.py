@@ -429,6 +429,36 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
     except tomllib.TOMLDecodeError as exc:
         msg = f"not valid TOML: {exc}; fix the syntax at that place"
         raise InputError(msg, source=source) from None
+    return project_from_data(data, source=source, text=text)
+
+
+def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: str = "") -> Project:
+    """Validate a project given as the tables of a parsed project file (what ``tomllib`` returns).
+
+    Shells that edit a project (the browser editor) hand their edits over in the file's own
+    field names, so every value is checked by the same rules and worded in the same messages
+    as a file.
+
+    Args:
+        data: The parsed tables: ``project``, ``costs``, ``frame`` as in a project file.
+        source: Name used in error messages.
+        text: The TOML text the tables came from, if any (messages then carry line numbers).
+
+    Returns:
+        The validated project.
+
+    Raises:
+        InputError: With every problem found.
+
+    Example:
+        >>> costs = {"brace": {"per_piece": 25.0, "per_metre": 8.0}, "tie": {"per_piece": 9.0, "per_metre": 3.0}}
+        >>> frame = {"name": "f", "widths": [3.0, "x"], "heights": [2.0]}
+        >>> try:
+        ...     project_from_data({"project": {"name": "p"}, "costs": costs, "frame": [frame]})
+        ... except InputError as exc:
+        ...     print(exc.problems[0].split(";")[0])
+        frame 'f'.widths[2]: cannot read 'x' as a length
+    """
     col = _Collector()
     lines = _Lines.scan(text)
     col.unknown_keys("top level", data, {"project", "costs", "frame"} | loads.TOP_KEYS)

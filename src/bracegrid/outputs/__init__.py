@@ -1,7 +1,7 @@
 """The outputs stage: text, JSON shapes, the bill, the DXF sheets (bracing, forces), previews, reports, bundles."""
 
 from bracegrid.outputs.bill import Bom, build_bom, render_bom_csv
-from bracegrid.outputs.bundle import OutputFormat, parse_formats, render_outputs
+from bracegrid.outputs.bundle import OutputFormat, parse_formats, render_compare_outputs, render_outputs
 from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes, write_dxf
 from bracegrid.outputs.forcefiles import render_force_files
 from bracegrid.outputs.forcesheet import ForceSheet, build_force_sheet, force_sheets
@@ -33,6 +33,7 @@ __all__ = [
     "render_check",
     "render_compare",
     "render_compare_csv",
+    "render_compare_outputs",
     "render_force_csv",
     "render_force_files",
     "render_forces",
