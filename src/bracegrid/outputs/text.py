@@ -186,7 +186,8 @@ def render_compare(comparison: Comparison) -> str:
     lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
     if any(s.forces is not None for fc in comparison.frames for s in fc.strategies):
         lines.append(
-            "max util / max drift: the layout under the frame's load cases (! = over capacity; bracegrid forces)"
+            "max util / max drift: the layout under the frame's load cases (! = a member over capacity or a base "
+            "node lifting beyond its resistance; bracegrid forces)"
         )
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
