@@ -7,7 +7,9 @@ Enumeration is switched off (``exact_limit=0``) so that every sample is drawn an
 k = 1 still comes from the critical members.
 
 Target (issue 15): 10^5 samples on a 30 x 30 layout in under 10 s on a 2-core machine.
-Run: python benchmarks/bench_robustness.py [--samples 100000] [--workers 1 2] [--ranking]
+Run: python benchmarks/bench_robustness.py [--samples 100000] [--workers 1 2] [--ranking] [--force-pool]
+("pool" says whether worker processes ran: only above engine._POOL_WORK, unless --force-pool; the
+pool column of a --ranking run counts the curve's samples only.)
 """
 
 from __future__ import annotations
@@ -20,6 +22,7 @@ import time
 import numpy as np
 
 from bracegrid.analysis import RobustnessOptions, build_arcs, robustness_of
+from bracegrid.analysis import robustness as engine
 from bracegrid.compare import rule_of_thumb_layout
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
 
@@ -60,11 +63,15 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--samples", type=int, default=100_000)
     parser.add_argument("--workers", type=int, nargs="+", default=[1, 2])
-    parser.add_argument("--ranking", action="store_true", help="also time the member ranking (2 x samples / members each)")
+    parser.add_argument("--ranking", action="store_true", help="time the member ranking too (enumeration on)")
+    parser.add_argument("--force-pool", action="store_true", help="start the process pool even for small work")
     args = parser.parse_args()
+    if args.force_pool:
+        engine._POOL_WORK = 0  # measuring the pool itself
+    limit = engine._POOL_WORK
     head = (
         f"{'layout':<28}{'members':>8}{'arcs':>6}{'samples':>9}{'procs':>6}{'seconds':>9}{'samples/s':>11}"
-        f"{'E[T]':>9}{'how':>7}{'load before':>13}{'load after':>12}"
+        f"{'E[T]':>9}{'how':>7}{'pool':>6}{'load before':>13}{'load after':>12}"
     )
     print(f"30 x 30 frames; {os.cpu_count()} CPUs")
     print(head)
@@ -85,10 +92,12 @@ def main() -> None:
             e = r.expected_losses
             expected = "-" if e is None else f"{e.value:.2f}"
             how = "exact" if r.exact else "MC"
+            work = r.samples * (len(arcs.src) + len(frame.members))
+            pool = "yes" if workers > 1 and work > limit else "no"
             rate = f"{args.samples / seconds:.0f}" if r.samples else "-"
             print(
                 f"{name:<28}{len(frame.members):>8}{len(arcs.src):>6}{r.samples:>9}{workers:>6}{seconds:>9.2f}"
-                f"{rate:>11}{expected:>9}{how:>7}{load:>13.2f}{after:>12.2f}"
+                f"{rate:>11}{expected:>9}{how:>7}{pool:>6}{load:>13.2f}{after:>12.2f}"
             )
     print("seconds: wall clock of robustness_of, including process start-up when procs > 1 and the work is large")
     print("how: exact = every value enumerated (no sampling needed: e.g. every member critical), MC = Monte Carlo")

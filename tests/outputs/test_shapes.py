@@ -43,7 +43,7 @@ FRAME_SOLUTION_KEYS = {
 }  # fmt: skip
 STRATEGY_KEYS = {
     "key", "status", "cost", "saving", "stable", "braces", "ties", "diagonal_length_m", "critical_members",
-    "redundancy", "bound", "gap", "seconds", "note",
+    "redundancy", "bound", "gap", "seconds", "note", "max_utilisation", "max_drift", "within_capacity",
 }  # fmt: skip
 
 CHAIN = (Member(1, 1, T, R), Member(1, 2, T, F), Member(2, 2, T, R))  # THEORY.md: floppy 2 x 2

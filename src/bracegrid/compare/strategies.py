@@ -31,7 +31,8 @@ from enum import Enum
 from bracegrid.analysis import Verdict, check_layout, redundancy_of
 from bracegrid.compare.baseline import rule_of_thumb_layout
 from bracegrid.errors import InfeasibleError
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, layout_cost
+from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, StrengthCatalogue, layout_cost
 from bracegrid.optimize import FrameSolution, SolveOptions, SolveStatus, optimize_frame
 
 
@@ -98,6 +99,8 @@ class StrategyResult:
         critical: Members whose single loss leaves a mechanism.
         redundancy: Members the layout can lose, any of them, and stay stable (-1: unstable).
         note: Why infeasible, or what the repair added.
+        forces: The layout's member forces under the frame's load cases (None without loads, or
+            when the project lacks a stiffness the layout needs).
     """
 
     key: StrategyKey
@@ -114,6 +117,7 @@ class StrategyResult:
     critical: int
     redundancy: int
     note: str = ""
+    forces: FrameForces | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -264,6 +268,14 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
                           seconds=time.perf_counter() - t0, note=note)  # fmt: skip
 
 
+def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> StrategyResult:
+    """The result with its layout's member forces, where the frame has loads and the stiffness is given."""
+    layout = result.frame
+    if strength is None or layout is None or not layout.loads or missing_stiffness(layout, strength, layout.members):
+        return result
+    return dataclasses.replace(result, forces=analyse_frame(layout, strength))
+
+
 def compare_frame(
     frame: Frame,
     costs: CostCatalogue,
@@ -271,6 +283,7 @@ def compare_frame(
     options: SolveOptions | None = None,
     bare: bool = False,
     on_progress: Callable[[str, StrategyKey], None] | None = None,
+    strength: StrengthCatalogue | None = None,
 ) -> FrameComparison:
     """Solve one frame under every strategy.
 
@@ -281,6 +294,8 @@ def compare_frame(
         options: Solver options (default :class:`SolveOptions`); the time limit applies to each strategy.
         bare: Drop every member and start each strategy from the bare frame.
         on_progress: Called with (frame name, strategy) as each strategy starts.
+        strength: Stiffness and capacities: with them, every layout of a frame with load cases gets
+            its member forces.
 
     Returns:
         The comparison, every layout re-verified.
@@ -295,7 +310,7 @@ def compare_frame(
             results.append(_baseline(frame, costs, options))
         else:
             results.append(_optimized(key, frame, costs, options))
-    return FrameComparison(frame=frame, strategies=tuple(results))
+    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength) for r in results))
 
 
 def compare_project(
@@ -311,6 +326,9 @@ def compare_project(
     return Comparison(
         project=project,
         frames=tuple(
-            compare_frame(f, project.costs, options=options, bare=bare, on_progress=on_progress) for f in chosen
+            compare_frame(
+                f, project.costs, options=options, bare=bare, on_progress=on_progress, strength=project.strength
+            )
+            for f in chosen
         ),
     )

@@ -11,7 +11,8 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from bracegrid.model.costs import CostCatalogue
-from bracegrid.model.kinds import Diagonal, MemberKind, Supports
+from bracegrid.model.kinds import Diagonal, Edge, MemberKind, Supports
+from bracegrid.model.loads import LoadCase, StrengthCatalogue
 from bracegrid.model.losses import LossLikelihood
 from bracegrid.units import diagonal_mm
 
@@ -81,6 +82,9 @@ class Frame:
         opening_overlap: A bay is blocked by an opening when the overlap area
             exceeds this fraction of the bay area (0 = any positive area).
         redundancy: Members whose loss the layout must survive (0 = none).
+        loads: Load cases for the member-force analysis (none: stability only).
+        held_edges: Edges a wall line under them holds along their own direction (plan grids,
+            ``supports`` free); they enter the force analysis only.
     """
 
     name: str
@@ -93,6 +97,8 @@ class Frame:
     members: tuple[Member, ...] = ()
     opening_overlap: float = 0.0
     redundancy: int = 0
+    loads: tuple[LoadCase, ...] = ()
+    held_edges: frozenset[Edge] = frozenset()
 
     @property
     def rows(self) -> int:
@@ -144,6 +150,7 @@ class Project:
         length_unit: Unit of bare numbers in the file (kept for writing back).
         source: The file it was read from, if any.
         loss_likelihood: How likely each member kind is to go missing (robustness statistics).
+        strength: Capacities and stiffness of members, grid bars and base (force analysis).
     """
 
     name: str
@@ -152,6 +159,7 @@ class Project:
     length_unit: str = "m"
     source: str = ""
     loss_likelihood: LossLikelihood = LossLikelihood()
+    strength: StrengthCatalogue = StrengthCatalogue()
 
     def frame(self, name: str) -> Frame:
         """The frame with this name.

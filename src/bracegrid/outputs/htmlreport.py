@@ -14,9 +14,12 @@ from datetime import date
 from bracegrid._version import __version__
 from bracegrid.analysis import CAUTION, ROBUSTNESS_LIMITS
 from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult, StrategyRobustness
-from bracegrid.model import Project
+from bracegrid.mechanics import FrameForces
+from bracegrid.model import Frame, Project
 from bracegrid.outputs.bill import FrameBom, build_bom
 from bracegrid.outputs.drawing import build_drawing
+from bracegrid.outputs.forcesheet import build_force_sheet
+from bracegrid.outputs.forcetext import drift_text, util_text
 from bracegrid.outputs.preview import PreviewFormat, render_preview
 from bracegrid.outputs.robustplot import PlotFormat, expected_words, render_robustness_plot, strategy_panels
 from bracegrid.units import format_length_m
@@ -133,7 +136,27 @@ def _strategy_section(project: Project, fc: FrameComparison, s: StrategyResult, 
         f"{'stable' if s.stable else 'NOT STABLE'} (re-verified); status {s.status.value}"
     )
     figure = f"<figure>{svg}<figcaption>{_e(caption)}</figcaption></figure>"
-    return f"{title}{figure}<h4>Bill of materials</h4>{_bom_table(bom)}"
+    forces = "" if s.forces is None else _force_figure(project, s.frame, s.forces, index, when)
+    return f"{title}{figure}{forces}<h4>Bill of materials</h4>{_bom_table(bom)}"
+
+
+def _force_figure(project: Project, frame: Frame, forces: FrameForces, index: int, when: date) -> str:
+    """The layout under its governing load case (or its first mechanism): one force-sheet panel."""
+    governing = forces.governing
+    shown = forces.mechanisms[:1] or tuple(c for c in forces.cases if governing and c.title == governing.case)[:1]
+    if not shown:
+        return ""
+    sheet = build_force_sheet(project, frame, shown, when=when)
+    svg = _scope_ids(inline_svg(render_preview(sheet, PreviewFormat.SVG)), f"f{index}-")
+    if forces.mechanisms:
+        words = f"MECHANISM under {', '.join(c.title for c in forces.mechanisms)}: no forces"
+    else:
+        state = "within capacity" if forces.ok else "OVER CAPACITY"
+        words = (
+            f"under its load cases: max utilisation {util_text(forces.max_utilisation)}, max drift "
+            f"{drift_text(forces.max_drift)}; {state}; governing case {shown[0].title} shown"
+        )
+    return f"<h4>Member forces</h4><figure>{svg}<figcaption>{_e(words)}</figcaption></figure>"
 
 
 def _robustness_section(curves: Sequence[StrategyRobustness]) -> str:

@@ -10,12 +10,28 @@ from __future__ import annotations
 import io
 from enum import Enum
 from pathlib import Path
+from typing import TYPE_CHECKING, Protocol
 
 from bracegrid.errors import ExportError
 from bracegrid.io import write_bytes_atomic
-from bracegrid.outputs.drawing import DrawnSheet
+from bracegrid.outputs.sheet import SheetPlan
+
+if TYPE_CHECKING:
+    from ezdxf.document import Drawing
 
 _MM_PER_INCH = 25.4
+
+
+class SheetLike(Protocol):
+    """Any finished sheet: its document and its plan (stability drawings and force sheets alike)."""
+
+    @property
+    def doc(self) -> Drawing:
+        """The ezdxf document."""
+
+    @property
+    def plan(self) -> SheetPlan:
+        """Sheet size and scale."""
 
 
 class PreviewFormat(Enum):
@@ -26,7 +42,7 @@ class PreviewFormat(Enum):
     PDF = "pdf"
 
 
-def preview_pixels(sheet: DrawnSheet, *, dpi: int = 150) -> tuple[int, int]:
+def preview_pixels(sheet: SheetLike, *, dpi: int = 150) -> tuple[int, int]:
     """Width and height in pixels of a PNG preview at ``dpi``.
 
     Example:
@@ -39,7 +55,7 @@ def preview_pixels(sheet: DrawnSheet, *, dpi: int = 150) -> tuple[int, int]:
     return (round(w / _MM_PER_INCH * dpi), round(h / _MM_PER_INCH * dpi))
 
 
-def render_preview(sheet: DrawnSheet, fmt: PreviewFormat, *, dpi: int = 150) -> bytes:
+def render_preview(sheet: SheetLike, fmt: PreviewFormat, *, dpi: int = 150) -> bytes:
     """Render the sheet to image bytes.
 
     Args:
@@ -81,7 +97,7 @@ def render_preview(sheet: DrawnSheet, fmt: PreviewFormat, *, dpi: int = 150) -> 
     return buffer.getvalue()
 
 
-def write_preview(sheet: DrawnSheet, path: str | Path, fmt: PreviewFormat, *, dpi: int = 150) -> Path:
+def write_preview(sheet: SheetLike, path: str | Path, fmt: PreviewFormat, *, dpi: int = 150) -> Path:
     """Render and write a preview atomically.
 
     Raises:

@@ -21,6 +21,7 @@ from bracegrid.analysis import (
     redundancy_words,
 )
 from bracegrid.compare import Comparison, StrategyKey
+from bracegrid.mechanics import FrameForces
 from bracegrid.model import Member, MemberKind
 from bracegrid.optimize import ProgressEvent, ProjectSolution
 from bracegrid.outputs.shapes import compare_rows, solution_counts
@@ -40,13 +41,18 @@ def _members_text(members: Sequence[Member], *, limit: int = 12) -> str:
 
 
 def render_check(
-    project_name: str, verdicts: Sequence[Verdict], *, additions: Mapping[str, AdditionAdvice] | None = None
+    project_name: str,
+    verdicts: Sequence[Verdict],
+    *,
+    notes: Sequence[str] = (),
+    additions: Mapping[str, AdditionAdvice] | None = None,
 ) -> str:
     """Human-readable result of ``bracegrid check``.
 
     Args:
         project_name: Shown in the title.
         verdicts: One per frame.
+        notes: Extra lines before the caution.
         additions: For unstable frames (by name), the single additions that lock the most loose parts.
     """
     table = Table(title=f"Stability check: {project_name}", title_justify="left")
@@ -74,6 +80,7 @@ def render_check(
         advice = (additions or {}).get(v.frame)
         if advice is not None:
             lines.extend(_additions_lines(advice))
+    lines.extend(notes)
     lines.append("")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
@@ -118,7 +125,9 @@ def render_robustness(project_name: str, results: Sequence[Robustness], *, ranki
             lines.append(render_table(table))
         e = r.expected_losses
         if not r.stable:
-            lines.append(f"{r.frame}: not stable before any loss; the stability check lists the single additions that help most")
+            lines.append(
+                f"{r.frame}: not stable before any loss; the stability check lists the single additions that help most"
+            )
         elif e is None:
             lines.append(f"{r.frame}: never gets a mechanism: the members never lost hold it on their own")
         else:
@@ -215,13 +224,30 @@ def render_compare_csv(comparison: Comparison) -> str:
     return buffer.getvalue()
 
 
+def _force_cells(forces: FrameForces | None) -> tuple[str, str]:
+    """Max utilisation and max drift of a strategy's layout, as table cells."""
+    if forces is None:
+        return ("-", "-")
+    if forces.mechanisms:
+        return ("MECH.", "-")
+    util = forces.max_utilisation
+    drift = forces.max_drift
+    flag = "" if forces.ok else " !"
+    return (
+        "-" if util is None else f"{100 * util:.0f}%{flag}",
+        "-" if not drift else f"1/{round(1 / drift):,}",
+    )
+
+
 def render_compare(comparison: Comparison) -> str:
     """Human-readable comparison tables, one per frame."""
     lines = []
     for fc in comparison.frames:
         table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
+        loaded = any(s.forces is not None for s in fc.strategies)
+        extra = ("max util", "max drift") if loaded else ()
         for head in ("strategy", "status", "braces", "ties", "length m", "cost", "saving", "stable",
-                     "critical", "survives", "gap", "time s"):  # fmt: skip
+                     "critical", "survives", *extra, "gap", "time s"):  # fmt: skip
             left = head in {"strategy", "status"}
             table.add_column(head, justify="left" if left else "right", no_wrap=left)
         for s in fc.strategies:
@@ -237,10 +263,11 @@ def render_compare(comparison: Comparison) -> str:
                 "yes" if s.stable else "NO",
                 str(s.critical),
                 "-" if s.redundancy < 0 else f"{s.redundancy}",
+                *(_force_cells(s.forces) if loaded else ()),
                 "-" if s.gap is None else f"{100 * s.gap:.2f}%",
                 f"{s.seconds:.2f}",
             )
-        lines.append(render_table(table, width=130))
+        lines.append(render_table(table, width=160 if loaded else 130))
         for s in fc.strategies:
             if s.note:
                 lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
@@ -252,5 +279,10 @@ def render_compare(comparison: Comparison) -> str:
             parts.append(f"{key.value} {'-' if total is None else f'{total:.2f}'}")
         lines.append("All frames: " + ", ".join(parts))
     lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
+    if any(s.forces is not None for fc in comparison.frames for s in fc.strategies):
+        lines.append(
+            "max util / max drift: the layout under the frame's load cases (! = a member over capacity or a base "
+            "node lifting beyond its resistance; bracegrid forces)"
+        )
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
