@@ -365,8 +365,10 @@ def _execute(jobs: Sequence[_Job], workers: int, on_progress: ProgressCallback |
     work = sum(j.count * (len(j.layout.arcs.src) + len(j.layout.weights)) for j in jobs)
     results: list[IntArray] = []
     if workers > 1 and len(jobs) > 1 and work > _POOL_WORK:
-        # spawn: a fork would copy the caller's threads (e.g. a progress display) mid-state.
-        context = multiprocessing.get_context("spawn")
+        # forkserver: workers fork from a clean single-threaded server that imported this module once
+        # (a plain fork would copy the caller's threads, e.g. a progress display, mid-state).
+        context = multiprocessing.get_context("forkserver")
+        context.set_forkserver_preload([__name__])
         with ProcessPoolExecutor(max_workers=min(workers, len(jobs)), mp_context=context) as pool:
             for result in pool.map(_run, jobs):
                 results.append(result)
@@ -491,13 +493,15 @@ def _mc_point(k: int, losses: IntArray) -> CurvePoint:
     return CurvePoint(lost=k, p_stable=survived / len(losses), low=low, high=high, exact=False)
 
 
-def _flat(frame: Frame, members: tuple[Member, ...], likelihood: LossLikelihood, stable: bool, k: int) -> Robustness:
-    """An unstable frame (or one with nothing to lose): every value is known without search."""
+def _flat(
+    frame: Frame, members: tuple[Member, ...], likelihood: LossLikelihood, stable: bool, k: int, seed: int
+) -> Robustness:
+    """An unstable frame (or one whose losses can never break it): every value is known without search."""
     value = 1.0 if stable else 0.0
     curve = tuple(_exact_point(j, value) for j in range(1, k + 1))
     expected = None if stable else Estimate(0.0, 0.0, 0.0, exact=True)
     losable = sum(1 for m in members if likelihood.weight(m.kind) > 0)
-    return Robustness(frame.name, len(members), losable, stable, curve, expected, likelihood, 0, 0)
+    return Robustness(frame.name, len(members), losable, stable, curve, expected, likelihood, 0, seed)
 
 
 def robustness_of(
@@ -544,7 +548,7 @@ def robustness_of(
     never_lost = [m for m, w in zip(layout_members, layout.weights.tolist(), strict=True) if w == 0]
     holds_alone = stable and arc_strong_components(build_arcs(frame, never_lost))[0] == 1
     if not stable or losable == 0 or holds_alone:
-        return _flat(frame, layout_members, likelihood, stable, top)
+        return _flat(frame, layout_members, likelihood, stable, top, options.seed)
     critical_members = set(map(id, find_critical_members(frame, layout_members)))
     critical = np.array([id(m) in critical_members for m in layout_members], dtype=bool)
     exact = _exact_curve(layout, critical, limit=options.exact_limit)
