@@ -37,6 +37,7 @@ from collections.abc import Callable, Sequence
 from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
 from fractions import Fraction
+from multiprocessing.context import BaseContext
 
 import numpy as np
 from scipy import stats
@@ -367,8 +368,12 @@ def _execute(jobs: Sequence[_Job], workers: int, on_progress: ProgressCallback |
     if workers > 1 and len(jobs) > 1 and work > _POOL_WORK:
         # forkserver: workers fork from a clean single-threaded server that imported this module once
         # (a plain fork would copy the caller's threads, e.g. a progress display, mid-state).
-        context = multiprocessing.get_context("forkserver")
-        context.set_forkserver_preload([__name__])
+        # Where there is no forkserver (Windows), spawned workers import the engine themselves.
+        context: BaseContext = multiprocessing.get_context("spawn")
+        if "forkserver" in multiprocessing.get_all_start_methods():
+            server = multiprocessing.get_context("forkserver")
+            server.set_forkserver_preload([__name__])
+            context = server
         with ProcessPoolExecutor(max_workers=min(workers, len(jobs)), mp_context=context) as pool:
             for result in pool.map(_run, jobs):
                 results.append(result)

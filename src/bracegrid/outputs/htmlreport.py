@@ -12,7 +12,7 @@ from collections.abc import Sequence
 from datetime import date
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, ROBUSTNESS_LIMITS
+from bracegrid.analysis import CAUTION
 from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult, StrategyRobustness
 from bracegrid.mechanics import FrameForces
 from bracegrid.model import Frame, Project
@@ -163,11 +163,18 @@ def _robustness_section(curves: Sequence[StrategyRobustness]) -> str:
     """The strategies' robustness curves: one inline SVG plot and a line per strategy."""
     svg = _scope_ids(inline_svg(render_robustness_plot(strategy_panels(curves), PlotFormat.SVG)), "robust-")
     items = "".join(f"<li>{_e(c.frame)} / {_e(c.key.title)}: {_e(expected_words(c.result))}</li>" for c in curves)
+    sampled = sorted({c.result.samples for c in curves if c.result.samples})
+    seeds = sorted({c.result.seed for c in curves})
+    caption = (
+        f"Monte Carlo curves: {', '.join(map(str, sampled))} samples each, seed {', '.join(map(str, seeds))}."
+        if sampled
+        else "Every value enumerated exactly."
+    ) + " Losses weighted as in the project file's [robustness.loss_likelihood] (equal when absent)."
     return (
         "<h2>Robustness: members lost at random</h2>"
         "<p>For each stable strategy layout, the probability that it stays free of mechanisms after k members "
         "go missing at random (docs/robustness.md), and the expected number of losses until the first mechanism."
-        f"</p><figure>{svg}<figcaption>{_e(ROBUSTNESS_LIMITS)}</figcaption></figure><ul>{items}</ul>"
+        f"</p><figure>{svg}<figcaption>{_e(caption)}</figcaption></figure><ul>{items}</ul>"
     )
 
 
