@@ -100,6 +100,21 @@ def diagonal_mm(width_mm: int, height_mm: int) -> float:
     return math.hypot(width_mm, height_mm)
 
 
+def cut_length_mm(width_mm: int, height_mm: int) -> int:
+    """Cut length of a bay diagonal: its node-to-node length to the nearest whole millimetre.
+
+    Exact integer arithmetic (``math.isqrt``): ``w**2 + h**2`` is a whole number, so its root
+    is either whole or irrational and never ends in exactly .5; no tie-breaking rule is needed.
+
+    Example:
+        >>> cut_length_mm(3000, 4000), cut_length_mm(1300, 2000), cut_length_mm(2500, 2000)
+        (5000, 2385, 3202)
+    """
+    square = width_mm * width_mm + height_mm * height_mm
+    floor = math.isqrt(square)
+    return floor + (1 if square > floor * floor + floor else 0)
+
+
 def format_length_m(length_mm: float, *, decimals: int = 2) -> str:
     """Format a millimetre length as metres for reports.
 

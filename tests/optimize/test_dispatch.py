@@ -169,7 +169,7 @@ def greedy_baseline(frame: Frame, costs: CostCatalogue) -> float | None:
     layout = list(frame.members)
     taken = {(m.row, m.col, m.diagonal) for m in layout}
     options = sorted(
-        (costs.member_cost(k, frame.diagonal_length_mm(i, j)), i, j, d.value, k.value)
+        (costs.member_price_cents(k, frame.cut_length_mm(i, j)) / 100, i, j, d.value, k.value)
         for i in range(1, frame.rows + 1)
         for j in range(1, frame.cols + 1)
         for d in Diagonal
@@ -233,8 +233,9 @@ def test_cost_never_above_greedy_baseline(case: tuple[Frame, CostCatalogue]) -> 
 
 def test_reported_cost_matches_bill_of_materials_to_the_cent() -> None:
     # Regression: 48 ties priced 60.8140591 each summed to 2919.07, while per-member rounding
-    # to 1/10000 units gave 2919.08 in the optimizer's report. Both now use exact prices.
-    # By hand: tie = 22 + 10 + 4.5 x hypot(5, 4) = 60.814059; x 48 (4 max(12, 8), N-1) = 2919.07.
+    # to 1/10000 units gave 2919.08 in the optimizer's report. Both now follow the bill's one
+    # rounding rule. By hand: cut = hypot(5000, 4000) = 6403.12 -> 6403 mm; tie = 22 + 10 +
+    # 4.5 x 6.403 = 60.8135 -> 60.81 (half up); x 48 (4 max(12, 8), N-1) = 2918.88.
     from pathlib import Path
 
     from bracegrid.io import load_project
@@ -243,4 +244,4 @@ def test_reported_cost_matches_bill_of_materials_to_the_cent() -> None:
     project = load_project(Path(__file__).resolve().parents[2] / "projects" / "mill-lane-roof.toml")
     sol = optimize_project(project, options=SolveOptions(time_limit=30, workers=1, redundancy=1))
     bom = build_bom(dataclasses.replace(project, frames=tuple(f.frame for f in sol.frames)))
-    assert round(bom.totals.cost, 2) == sol.cost == 2919.07
+    assert bom.totals.cost == sol.cost == 2918.88
