@@ -115,6 +115,29 @@ def cut_length_mm(width_mm: int, height_mm: int) -> int:
     return floor + (1 if square > floor * floor + floor else 0)
 
 
+def metres(length_mm: float) -> float:
+    """Millimetres to metres, rounded to the millimetre (three decimals) for JSON and CSV.
+
+    Example:
+        >>> metres(82238)
+        82.238
+    """
+    return round(length_mm / 1000.0, 3)
+
+
+def metres_text(length_mm: int) -> str:
+    """Whole millimetres as metres to the millimetre (three decimals, no unit), exact from the integer.
+
+    Bill lengths print this way, so printed rows add up to printed totals.
+
+    Example:
+        >>> metres_text(38160), metres_text(5)
+        ('38.160', '0.005')
+    """
+    whole, part = divmod(int(length_mm), 1000)
+    return f"{whole}.{part:03d}"
+
+
 def format_length_m(length_mm: float, *, decimals: int = 2) -> str:
     """Format a millimetre length as metres for reports.
 

@@ -131,7 +131,7 @@ def test_cli_writes_csv_dxf_per_strategy_and_self_contained_html(tmp_path: Path)
     page = (folder / "report.html").read_text(encoding="utf-8")
     parser = _Collect()
     parser.feed(page)
-    assert parser.tags.count("svg") == 5  # one inline drawing per strategy
+    assert parser.tags.count("figure") == 5  # one figure (frame drawing and legend) per strategy
     assert "table" in parser.tags
     assert parser.external == []  # no network fetches: nothing loaded from elsewhere
     assert "licensed engineer" in page

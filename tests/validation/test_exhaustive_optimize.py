@@ -34,7 +34,11 @@ def _units(costs: CostCatalogue, kind: MemberKind, frame: Frame, row: int, col: 
     cut = round(math.hypot(frame.widths[col - 1], frame.heights[row - 1]))
     rate = costs.rate(kind)
     exact = (
-        (Fraction(repr(rate.per_piece)) + Fraction(repr(rate.labour_per_piece)) + Fraction(repr(rate.per_metre)) * cut / 1000)
+        (
+            Fraction(repr(rate.per_piece))
+            + Fraction(repr(rate.labour_per_piece))
+            + Fraction(repr(rate.per_metre)) * cut / 1000
+        )
         * (100 + Fraction(repr(costs.contingency_pct)))
         / 100
     )

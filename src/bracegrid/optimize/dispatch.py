@@ -231,7 +231,10 @@ def _solve_cp(
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
         raise SolverLimitError(msg)
-    method = SolveMethod.PATTERN_BOUND if result.iterations == 0 else SolveMethod.CUT_LOOP
+    if result.iterations > 0:
+        method = SolveMethod.CUT_LOOP
+    else:  # no solver round: proven only if the closed-form floor met the warm start
+        method = SolveMethod.PATTERN_BOUND if result.proven else SolveMethod.WARM_START
     return _Found(result.additions, result.bound, result.proven, method, rounds=result.iterations, cuts=result.cuts)
 
 

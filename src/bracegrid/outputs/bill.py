@@ -344,4 +344,3 @@ def render_bom_totals_csv(bom: Bom) -> str:
         writer.writerow(row("frame", fb.frame, fb.totals))
     writer.writerow(row("all", "", bom.totals))
     return buffer.getvalue()
-

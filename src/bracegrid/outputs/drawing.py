@@ -60,7 +60,6 @@ from bracegrid.outputs.sheet import (
     plan_sheet,
     title_size,
 )
-from bracegrid.outputs.terms import BLOCKED_LABEL, supports_words
 from bracegrid.outputs.symbols import (
     BAY_TAG_BLOCK,
     BAY_TAG_HEIGHT,
@@ -73,6 +72,7 @@ from bracegrid.outputs.symbols import (
     setup_document,
     text_width,
 )
+from bracegrid.outputs.terms import BLOCKED_LABEL, supports_words
 from bracegrid.units import DXF_INSUNITS, format_length_m
 
 if TYPE_CHECKING:
@@ -128,7 +128,13 @@ def part_tag(index: int) -> str:
     return f"M{index}"
 
 
-def _part_label(index: int, racking: Racking) -> str:
+def part_label(index: int, racking: Racking) -> str:
+    """Tag of a loose part with the way it can still rack.
+
+    Example:
+        >>> part_label(1, Racking.CLOCKWISE)
+        'M1 clockwise only'
+    """
     words = {Racking.BOTH: "both ways", Racking.CLOCKWISE: "clockwise only"}
     return f"{part_tag(index)} {words.get(racking, 'anticlockwise only')}"
 
@@ -139,7 +145,7 @@ def _column_part_notes(verdict: Verdict) -> list[str]:
     for k, part in enumerate(verdict.loose_parts, start=1):
         if not part.rows:
             cols = ", ".join(f"C{c}" for c in part.columns)
-            notes.append(f"{_part_label(k, part.racking)} ({cols})")
+            notes.append(f"{part_label(k, part.racking)} ({cols})")
     return notes
 
 
@@ -154,7 +160,7 @@ def _bottom_zone(frame: Frame) -> tuple[float, float, float]:
 def _margins(fs: FrameSheet, heading_width: float) -> Margins:
     """Annotation room; ``heading_width`` is what the frame outline plus right margin must cover."""
     parts = fs.verdict.loose_parts
-    tags = [_part_label(k, p.racking) for k, p in enumerate(parts, start=1)] + _column_part_notes(fs.verdict)
+    tags = [part_label(k, p.racking) for k, p in enumerate(parts, start=1)] + _column_part_notes(fs.verdict)
     right = 4.0 + max((text_width(t, H_SMALL) for t in tags), default=0.0) if tags else 3.0
     column_only = any(not p.rows for p in parts)
     _, _, overall = _bottom_zone(fs.frame)
@@ -193,7 +199,12 @@ _MARKER_BLOCKS = {
 
 
 def label_spot(
-    frame: Frame, opening: Opening, *, width_mm: float, height_mm: float, taken: frozenset[tuple[int, int]] = frozenset()
+    frame: Frame,
+    opening: Opening,
+    *,
+    width_mm: float,
+    height_mm: float,
+    taken: frozenset[tuple[int, int]] = frozenset(),
 ) -> tuple[float, float]:
     """Where an opening's name goes: the centre of a bay it blocks, clear of grid lines.
 
@@ -290,14 +301,14 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
     taken = set(listed)
     for opening in f.openings:
         lw, lh = label_box_size(opening.name)
-        x, y = label_spot(f, opening, width_mm=lw * scale, height_mm=lh * scale, taken=frozenset(taken))
-        taken |= {bay for bay in bays_blocked_by(f, opening) if bay_box(f, *bay).contains(Point(x, y))}
-        _label_box(pen, opening.name, x / scale, y / scale)
+        lx, ly = label_spot(f, opening, width_mm=lw * scale, height_mm=lh * scale, taken=frozenset(taken))
+        taken |= {bay for bay in bays_blocked_by(f, opening) if bay_box(f, *bay).contains(Point(lx, ly))}
+        _label_box(pen, opening.name, lx / scale, ly / scale)
     # loose-part tags
     for k, part in enumerate(v.loose_parts, start=1):
         if part.rows:
             r = part.rows[0]
-            pen.text(_part_label(k, part.racking), w / scale + 2.0, (ys[r - 1] + ys[r]) / 2 / scale, height=H_SMALL,
+            pen.text(part_label(k, part.racking), w / scale + 2.0, (ys[r - 1] + ys[r]) / 2 / scale, height=H_SMALL,
                      layer=Layer.LOOSE, align="MIDDLE_LEFT")  # fmt: skip
         else:
             c = part.columns[0]

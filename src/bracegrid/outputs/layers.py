@@ -65,7 +65,7 @@ _BOTH = frozenset(Field)
 class Layer(Enum):
     """Every layer a bracegrid drawing uses."""
 
-    GRID = LayerSpec("S-GRID", 252, "BG_CHAIN", 25, "grid lines of the frame (member centre lines)")
+    GRID = LayerSpec("S-GRID", 251, "BG_CHAIN", 30, "grid lines of the frame (member centre lines)")
     GRID_LABEL = LayerSpec("S-GRID-IDEN", 7, "Continuous", 25, "row and column tags of the bays")
     GRID_DIMS = LayerSpec("S-GRID-DIMS", 7, "Continuous", 18, "dimension chains: column widths, row heights")
     FRAME = LayerSpec("S-FRAM", 7, "Continuous", 35, "standards and ledgers: the frame outline and bars", _MAJOR)

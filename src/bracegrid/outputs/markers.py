@@ -120,7 +120,9 @@ def _clear(circles: list[tuple[float, float, float, Diagonal]], w: float, h: flo
     return True
 
 
-def _circles(config: _Config, w: float, h: float, k: float, ts: float, tc: float) -> list[tuple[float, float, float, Diagonal]]:
+def _circles(
+    config: _Config, w: float, h: float, k: float, ts: float, tc: float
+) -> list[tuple[float, float, float, Diagonal]]:
     circles = []
     for diagonal, tie, critical in config:
         if tie:
@@ -174,9 +176,7 @@ def place_markers(frame: Frame, critical: Iterable[Member], *, scale: float) -> 
     xs, ys = frame.x_lines(), frame.y_lines()
 
     def config_of(members: list[Member]) -> _Config:
-        return tuple(
-            (m.diagonal, m.kind is MemberKind.TIE, (m.row, m.col, m.diagonal) in crit) for m in members
-        )
+        return tuple((m.diagonal, m.kind is MemberKind.TIE, (m.row, m.col, m.diagonal) in crit) for m in members)
 
     shapes: dict[tuple[_Config, float, float], float | None] = {}
     needed = []
@@ -204,7 +204,9 @@ def place_markers(frame: Frame, critical: Iterable[Member], *, scale: float) -> 
         for m, (_, tie, is_critical) in zip(members, config, strict=True):
             if tie:
                 x, y = _at(m.diagonal, w, h, ts)
-                kind = MarkerKind.RESISTS_CLOCKWISE if m.diagonal is Diagonal.RISING else MarkerKind.RESISTS_ANTICLOCKWISE
+                kind = (
+                    MarkerKind.RESISTS_CLOCKWISE if m.diagonal is Diagonal.RISING else MarkerKind.RESISTS_ANTICLOCKWISE
+                )
                 markers.append(Marker(kind, m, ox + x, oy + y, size))
             if is_critical:
                 x, y = _at(m.diagonal, w, h, tc)

@@ -32,8 +32,12 @@ from bracegrid.outputs.drawing import DrawnSheet
 
 if TYPE_CHECKING:
     from ezdxf.addons.drawing.properties import Properties
-    from ezdxf.entities import DXFGraphic, DXFPolygon, MText
+    from ezdxf.entities.dxfgfx import DXFGraphic
+    from ezdxf.entities.mtext import MText
+    from ezdxf.entities.polygon import DXFPolygon
+    from ezdxf.entities.text import Text
     from ezdxf.math import Matrix44
+    from ezdxf.math import Vec2 as _Vec2
     from ezdxf.path import Path as DxfPath
 
 _MM_PER_INCH = 25.4
@@ -98,24 +102,26 @@ def _frontend_class() -> type[Any]:
     """The add-on's frontend with real text and repeatable hatches (built lazily: ezdxf is imported late)."""
     from ezdxf.addons.drawing.frontend import Frontend
     from ezdxf.addons.drawing.text import simplified_text_chunks
+    from ezdxf.entities.text import Text
     from ezdxf.math import Vec2
     from ezdxf.render import hatching
 
-    class _SheetFrontend(Frontend):  # type: ignore[misc]
+    class _SheetFrontend(Frontend):
         """Collects text lines instead of drawing glyph outlines; shifts hatch origins by a fixed amount."""
 
         def __init__(self, *args: Any, **kwargs: Any) -> None:
             super().__init__(*args, **kwargs)
             self.text_lines: list[_TextLine] = []
 
-        def _collect(self, entity: DXFGraphic, properties: Properties) -> None:
+        def _collect(self, entity: Text | MText, properties: Properties) -> None:
             face = self.get_font_face(properties)
             for line, transform, cap_height in simplified_text_chunks(entity, self.text_engine, font_face=face):
                 if line.strip():
                     self.text_lines.append(_text_line(line, transform, cap_height, properties.color))
 
         def draw_text_entity_2d(self, entity: DXFGraphic, properties: Properties) -> None:
-            self._collect(entity, properties)
+            if isinstance(entity, Text):  # ATTRIB and ATTDEF are TEXT subclasses
+                self._collect(entity, properties)
 
         def draw_simple_mtext(self, mtext: MText, properties: Properties) -> None:
             self._collect(mtext, properties)
@@ -124,7 +130,7 @@ def _frontend_class() -> type[Any]:
             if polygon.pattern is None or len(polygon.pattern.lines) == 0:
                 return
             properties.linetype_pattern = ()
-            lines = []
+            lines: list[tuple[_Vec2, _Vec2]] = []
             spacing = sum(line.offset.magnitude for line in polygon.pattern.lines) / len(polygon.pattern.lines)
             shift = Vec2(_HATCH_SHIFT[0] * spacing, _HATCH_SHIFT[1] * spacing)
             for base in hatching.pattern_baselines(
@@ -191,13 +197,12 @@ def render_preview(sheet: DrawnSheet, fmt: PreviewFormat, *, dpi: int = 150) -> 
     buffer = io.BytesIO()
     # Type 42 = the TrueType font embedded (searchable text); SVG text stays <text>; no dates
     # in the metadata, so the same sheet always gives the same bytes.
-    style = {"pdf.fonttype": 42, "ps.fonttype": 42, "svg.fonttype": "none", "svg.hashsalt": "bracegrid"}
     metadata: dict[str, Any] = {
         PreviewFormat.PNG: {"Software": None},
         PreviewFormat.SVG: {"Date": None, "Creator": None},
         PreviewFormat.PDF: {"CreationDate": None, "ModDate": None, "Producer": None, "Creator": None},
     }[fmt]
-    with matplotlib.rc_context(style):
+    with matplotlib.rc_context({"pdf.fonttype": 42, "svg.fonttype": "none", "svg.hashsalt": "bracegrid"}):
         fig.savefig(buffer, format=fmt.value, dpi=dpi, facecolor="white", metadata=metadata)
     return buffer.getvalue()
 
@@ -214,4 +219,3 @@ def write_preview(sheet: DrawnSheet, path: str | Path, fmt: PreviewFormat, *, dp
         msg = f"cannot render the {fmt.value} preview for {path}: {exc}"
         raise ExportError(msg) from exc
     return write_bytes_atomic(path, data)
-

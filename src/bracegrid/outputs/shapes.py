@@ -11,8 +11,9 @@ from typing import Any
 
 from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part
 from bracegrid.compare import Comparison
-from bracegrid.model import Member, MemberKind
+from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, layout_length_mm
 from bracegrid.optimize import FrameSolution, ProjectSolution
+from bracegrid.units import metres
 
 
 def member_dict(member: Member) -> dict[str, Any]:
@@ -55,30 +56,41 @@ def check_dict(verdicts: Sequence[Verdict]) -> dict[str, Any]:
 
 
 def solution_counts(solution: FrameSolution) -> dict[str, Any]:
-    """Counts and diagonal length of one frame solution."""
+    """Counts and total cut length of one frame solution (``length_mm`` whole mm, ``length_m`` the same in m)."""
     frame = solution.frame
     members = solution.members
     new = [m for m in members if not m.existing]
-    length_mm = sum(frame.diagonal_length_mm(m.row, m.col) for m in members)
+    length_mm = layout_length_mm(frame, members)
     return {
         "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
         "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
         "new_braces": sum(1 for m in new if m.kind is MemberKind.BRACE),
         "new_ties": sum(1 for m in new if m.kind is MemberKind.TIE),
-        "length_m": round(length_mm / 1000.0, 3),
+        "length_mm": length_mm,
+        "length_m": metres(length_mm),
     }
 
 
-def optimize_member_dict(member: Member) -> dict[str, Any]:
-    """A member of an optimized layout as JSON (with whether it was kept)."""
-    return {**member_dict(member), "existing": member.existing}
+def optimize_member_dict(member: Member, frame: Frame, costs: CostCatalogue) -> dict[str, Any]:
+    """A member of an optimized layout as JSON: whether it was kept, its cut length and price.
+
+    ``cost`` follows the bill's one rounding rule, so a frame's ``cost`` is the sum of its members'.
+    """
+    cut = frame.cut_length_mm(member.row, member.col)
+    return {
+        **member_dict(member),
+        "existing": member.existing,
+        "cut_length_mm": cut,
+        "cost": costs.member_price_cents(member.kind, cut) / 100,
+    }
 
 
-def frame_solution_dict(solution: FrameSolution) -> dict[str, Any]:
+def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue) -> dict[str, Any]:
     """One frame's optimizer answer as a JSON-ready dict.
 
     Args:
         solution: One frame's answer.
+        costs: The prices (each member's ``cost`` is given).
 
     Returns:
         name, status, cost, added_cost, bound, gap, seconds, method, counts,
@@ -103,7 +115,7 @@ def frame_solution_dict(solution: FrameSolution) -> dict[str, Any]:
         "diagonal_length_m": parts["length_m"],
         "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
         "removed": [member_dict(m) for m in solution.verdict.removed],
-        "members": [optimize_member_dict(m) for m in solution.members],
+        "members": [optimize_member_dict(m, solution.frame, costs) for m in solution.members],
     }
 
 
@@ -119,7 +131,7 @@ def optimize_dict(solution: ProjectSolution) -> dict[str, Any]:
     return {
         "cost": solution.cost,
         "added_cost": solution.added_cost,
-        "frames": [frame_solution_dict(f) for f in solution.frames],
+        "frames": [frame_solution_dict(f, solution.project.costs) for f in solution.frames],
         "caution": CAUTION,
     }
 
@@ -139,7 +151,11 @@ def compare_rows(comparison: Comparison) -> list[dict[str, Any]]:
                     "stable": s.stable,
                     "braces": s.braces,
                     "ties": s.ties,
-                    "diagonal_length_m": round(s.length_mm / 1000.0, 3),
+                    "kept_braces": s.kept_braces,
+                    "kept_ties": s.kept_ties,
+                    "added_braces": s.added_braces,
+                    "added_ties": s.added_ties,
+                    "diagonal_length_m": metres(s.length_mm),
                     "critical_members": s.critical,
                     "redundancy": s.redundancy,
                     "bound": s.bound,

@@ -36,9 +36,9 @@ from bracegrid.outputs.terms import (
     MEMBER,
     STATUS,
     counts_words,
-    length_text,
     money_text,
 )
+from bracegrid.units import metres_text
 
 if TYPE_CHECKING:
     from ezdxf.layouts.layout import Modelspace
@@ -410,7 +410,7 @@ def bill_rows(bom: Bom) -> list[BillRow]:
 
     def totals(kind: BillRowKind, label: str, t: BomTotals) -> BillRow:
         return BillRow(kind, (label, counts_words(t.braces, t.ties), None, str(t.members), "",
-                              length_text(t.length_mm), money_text(t.cost_cents)))  # fmt: skip
+                              metres_text(t.length_mm), money_text(t.cost_cents)))  # fmt: skip
 
     for fb in bom.frames:
         first = True
@@ -424,25 +424,27 @@ def bill_rows(bom: Bom) -> list[BillRow]:
                         "existing" if g.existing else "proposed",
                         str(g.count),
                         str(g.cut_length_mm),
-                        length_text(g.length_mm),
+                        metres_text(g.length_mm),
                         money_text(g.cost_cents),
                     ),
                 )
             )
             first = False
         if first:
-            rows.append(BillRow(BillRowKind.ITEM, (fb.frame, "none", "", "0", "", length_text(0), money_text(0))))
+            rows.append(BillRow(BillRowKind.ITEM, (fb.frame, "none", "", "0", "", metres_text(0), money_text(0))))
         if len(bom.frames) > 1:
             rows.append(totals(BillRowKind.FRAME_TOTAL, "  frame total", fb.totals))
     t = bom.totals
     rows.append(totals(BillRowKind.TOTAL, "TOTAL", t))
-    rows.append(BillRow(BillRowKind.PROPOSED, ("of which proposed", counts_words(*_proposed_kinds(bom)), None,
-                                               str(t.proposed), "", "", money_text(t.proposed_cost_cents))))  # fmt: skip
+    proposed = ("of which proposed", counts_words(*_proposed_kinds(bom)), None, str(t.proposed), "", "")
+    rows.append(BillRow(BillRowKind.PROPOSED, (*proposed, money_text(t.proposed_cost_cents))))
     return rows
 
 
 def _proposed_kinds(bom: Bom) -> tuple[int, int]:
-    braces = sum(1 for fb in bom.frames for x in fb.lines if not x.member.existing and x.member.kind is MemberKind.BRACE)
+    braces = sum(
+        1 for fb in bom.frames for x in fb.lines if not x.member.existing and x.member.kind is MemberKind.BRACE
+    )
     return braces, bom.totals.proposed - braces
 
 

@@ -21,9 +21,6 @@ LENGTH = "length m"
 COST = "cost"
 SAVING = "saving"
 
-#: Decimals of a length in metres: three, so lengths print to the millimetre and add up.
-LENGTH_DECIMALS = 3
-
 
 def plural(count: int, word: str) -> str:
     """A count with its noun, singular for one.
@@ -67,17 +64,6 @@ def money_text(cents: int) -> str:
     sign = "-" if cents < 0 else ""
     whole, part = divmod(abs(cents), 100)
     return f"{sign}{whole:,}.{part:02d}"
-
-
-def length_text(length_mm: int) -> str:
-    """Whole millimetres as metres to the millimetre (three decimals), from the integer.
-
-    Example:
-        >>> length_text(38160), length_text(5)
-        ('38.160', '0.005')
-    """
-    whole, part = divmod(length_mm, 1000)
-    return f"{whole}.{part:03d}"
 
 
 def cents(money: float) -> int:
