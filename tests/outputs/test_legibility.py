@@ -32,7 +32,14 @@ from bracegrid.outputs.layers import Layer
 from bracegrid.outputs.markers import place_markers
 from bracegrid.outputs.preview import PreviewFormat, render_preview
 from bracegrid.outputs.sheet import legend_rows, legend_size
-from bracegrid.outputs.symbols import BLOCKED_PATTERN, CRITICAL_BLOCK, DIM_STYLE, TICK_BLOCK, TIE_ACW_BLOCK, TIE_CW_BLOCK
+from bracegrid.outputs.symbols import (
+    BLOCKED_PATTERN,
+    CRITICAL_BLOCK,
+    DIM_STYLE,
+    TICK_BLOCK,
+    TIE_ACW_BLOCK,
+    TIE_CW_BLOCK,
+)
 from tests.drawing_cases import ORCHARD, QUAYSIDE, ROOT, braced_quayside, loose_deck
 
 WHEN = date(2026, 12, 1)
@@ -174,7 +181,7 @@ def test_labels_sit_clear_of_every_line(drawn: tuple[DrawnSheet, Drawing]) -> No
     # Issue 10: "goods hoist" and "smoke vent" were struck through by grid lines (mask drawn first,
     # label point on a line). No grid line or bar may cross a label at all, and no line drawn after
     # a label's mask may enter the mask.
-    sheet, doc = drawn
+    _sheet, doc = drawn
     lines = _lines(doc, {Layer.GRID, Layer.FRAME, *MEMBER_LAYERS})
     for text, shape in _texts(doc, Layer.OPENING_LABEL):
         for line in lines:
@@ -186,9 +193,8 @@ def test_labels_sit_clear_of_every_line(drawn: tuple[DrawnSheet, Drawing]) -> No
         corners = [v.vec2 for v in mask.boundary_path_wcs()]
         area = Polygon(corners)
         for later in entities[i + 1 :]:
-            if later.dxftype() in {"LINE", "LWPOLYLINE", "HATCH", "INSERT"}:
-                if later.dxftype() == "LINE":
-                    assert not _shape(later).intersects(area)
+            if later.dxftype() in {"LINE", "LWPOLYLINE", "HATCH", "INSERT"} and later.dxftype() == "LINE":
+                assert not _shape(later).intersects(area)
 
 
 def test_opening_outlines_stay_visible(drawn: tuple[DrawnSheet, Drawing]) -> None:
@@ -262,14 +268,14 @@ def _legend_samples(sheet: DrawnSheet, doc: Drawing) -> dict[str, object]:
     """The samples of each legend row (everything on the legend layer left of the row's words)."""
     from ezdxf import bbox
 
-    x0, y0, x1, y1 = _legend_box(sheet)
+    x0, _y0, x1, _y1 = _legend_box(sheet)
     words = {e.dxf.text: e.dxf.align_point.y for e in doc.modelspace().query("TEXT")
              if e.dxf.layer == Layer.LEGEND.layer_name and e.dxf.halign == 0 and e.dxf.text != "LEGEND"}  # fmt: skip
     text_x = min(e.dxf.align_point.x for e in doc.modelspace().query("TEXT")
                  if e.dxf.layer == Layer.LEGEND.layer_name and e.dxf.text in words)  # fmt: skip
     rows: dict[str, list[object]] = {w: [] for w in words}
     for e in doc.modelspace():
-        if e.dxf.layer != Layer.LEGEND.layer_name or e.dxftype() == "TEXT" and e.dxf.text in words:
+        if e.dxf.layer != Layer.LEGEND.layer_name or (e.dxftype() == "TEXT" and e.dxf.text in words):
             continue
         ext = bbox.extents([e], fast=False)
         if not ext.has_data or ext.extmax.x > text_x or (ext.size.x > 0.9 * (x1 - x0)):
@@ -360,7 +366,7 @@ def test_counts_written_out_and_tags_our_own(demo: tuple[DrawnSheet, Drawing]) -
     texts = [e.dxf.text for e in doc.modelspace().query("TEXT")]
     assert not [t for t in texts if re.fullmatch(r"\d+B \d+T", t)]
     assert "0 braces, 32 ties" in texts
-    assert not [e for e in doc.modelspace().query("CIRCLE")]
+    assert not list(doc.modelspace().query("CIRCLE"))
     unstable = build_drawing(load_project(QUAYSIDE), when=WHEN)
     tags = [e.dxf.text for e in unstable.doc.modelspace().query("TEXT") if e.dxf.layer == Layer.LOOSE.layer_name]
     assert tags
@@ -373,6 +379,6 @@ def test_opening_label_in_a_bay_of_its_own() -> None:
     project = load_project(QUAYSIDE)
     sheet = build_drawing(project, when=WHEN)
     (text,) = [e for e in sheet.doc.modelspace().query("TEXT") if e.dxf.text == hoist.name]
-    ox, oy = sheet.plan.origins[0]
+    _ox, oy = sheet.plan.origins[0]
     y = text.dxf.align_point.y - oy
     assert y % 2000 == pytest.approx(1000)  # mid-height of a 2 m lift
