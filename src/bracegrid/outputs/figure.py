@@ -26,18 +26,18 @@ from bracegrid.outputs.symbols import bay_tag_outline, critical_diamond, sense_s
 from bracegrid.outputs.terms import BLOCKED_LABEL
 
 #: Pixels per figure unit: markers are sized in figure units as the sheet's are in paper mm.
-UNIT_PX = 3.0
-#: Smallest bay side on the page, pixels (about 9 units: markers still fit, labels still read).
-MIN_BAY_PX = 28.0
+UNIT_PX = 4.0
+#: Smallest bay side on the page, pixels (14 units: markers keep near full size, labels read).
+MIN_BAY_PX = 56.0
 #: Preferred largest figure width and height, pixels (larger only to keep bays readable).
-FIT_WIDTH_PX = 700.0
-FIT_HEIGHT_PX = 560.0
+FIT_WIDTH_PX = 900.0
+FIT_HEIGHT_PX = 640.0
 #: Largest bay side, pixels (a 1 x 1 frame stays a sensible size).
 MAX_BAY_PX = 120.0
 
 _FONT = 'font-family="system-ui,-apple-system,Segoe UI,Helvetica,Arial,sans-serif"'
 _COLORS = {"new": "#d92d20", "old": "#1849a9", "sense": "#1d2327", "crit": "#c11574", "opening": "#067647"}
-_TAG_W, _TAG_H = 26.0, 14.0
+_TAG_W, _TAG_H = 30.0, 15.0
 
 
 def _e(text: object) -> str:

@@ -34,7 +34,7 @@ from bracegrid.outputs.terms import (
 from bracegrid.units import format_length_m, metres_text
 
 _STYLE = """
-body{font-family:system-ui,-apple-system,"Segoe UI",Helvetica,Arial,sans-serif;margin:2rem auto;max-width:1200px;
+body{font-family:system-ui,-apple-system,"Segoe UI",Helvetica,Arial,sans-serif;margin:2rem auto;max-width:1400px;
 color:#1d2327;line-height:1.4;padding:0 1rem}
 h1{margin-bottom:.2rem}h2{border-bottom:2px solid #1d2327;padding-bottom:.2rem;margin-top:2.5rem}
 h3{margin-top:2rem}.meta{color:#555}
@@ -43,11 +43,11 @@ table{border-collapse:collapse;margin:.6rem 0;font-size:.92rem}
 th,td{border:1px solid #c8ccd0;padding:.3rem .55rem;text-align:right;vertical-align:top}
 th{background:#eef1f4}td.l,th.l{text-align:left}
 tr.best td{background:#ecfdf3;font-weight:600}.bad{color:#b42318;font-weight:600}
-figure{margin:1rem 0;border:1px solid #c8ccd0;padding:.6rem;background:#fff;display:flex;gap:1.2rem;
-align-items:flex-start;flex-wrap:wrap}
-figure .draw{overflow:auto;max-width:100%;max-height:80vh}figure svg{display:block}
-figcaption{font-size:.85rem;color:#555;flex-basis:100%}
-ul.legend{list-style:none;margin:0;padding:0;font-size:.82rem;max-width:21rem}
+figure{margin:1rem 0;border:1px solid #c8ccd0;padding:.6rem;background:#fff;display:grid;gap:1.2rem;
+grid-template-columns:minmax(0,max-content) 19rem;align-items:start}
+figure .draw{overflow:auto;max-height:85vh}figure svg{display:block}
+figcaption{font-size:.85rem;color:#555;grid-column:1/-1}
+ul.legend{list-style:none;margin:0;padding:0;font-size:.82rem}
 ul.legend li{display:flex;align-items:center;gap:.5rem;margin:.1rem 0}ul.legend svg{flex:none}
 .note{font-size:.85rem;color:#444;text-align:left}
 @media print{figure{break-inside:avoid}h2{break-before:page}figure .draw{max-height:none}}

@@ -31,8 +31,21 @@ SIZES: tuple[float, ...] = tuple(round(1.0 - 0.05 * k, 2) for k in range(11))
 #: Usual positions along a member from its lower end (fractions of its length).
 SENSE_AT = 0.28
 CRITICAL_AT = 0.72
-_SENSE_RANGE = [round(0.08 + 0.01 * k, 2) for k in range(40)]  # 0.08 .. 0.47
-_CRITICAL_RANGE = [round(1.0 - t, 2) for t in _SENSE_RANGE]  # 0.92 .. 0.53
+_SENSE_RANGE = [round(0.08 + 0.015 * k, 3) for k in range(27)]  # 0.08 .. 0.47
+_CRITICAL_RANGE = [round(1.0 - t, 3) for t in _SENSE_RANGE]  # 0.92 .. 0.53
+#: Footprint radius of a full-size curl (a constant of the symbol).
+_SENSE_REACH = sense_reach()
+
+
+#: Candidate fractions, nearest the usual ones first.
+_SENSE_ORDER = tuple(sorted(_SENSE_RANGE, key=lambda t: (abs(t - SENSE_AT), t)))
+_CRITICAL_ORDER = tuple(sorted(_CRITICAL_RANGE, key=lambda t: (abs(t - CRITICAL_AT), -t)))
+_PAIR_ORDER = tuple(
+    sorted(
+        ((a, b) for a in _SENSE_RANGE for b in _CRITICAL_RANGE),
+        key=lambda p: (abs(p[0] - SENSE_AT) + abs(p[1] - CRITICAL_AT), p),
+    )
+)
 
 
 class MarkerKind(Enum):
@@ -67,7 +80,7 @@ class Marker:
     @property
     def reach(self) -> float:
         """Radius of the marker's footprint, paper mm."""
-        return self.size * (CRITICAL_HALF if self.kind is MarkerKind.CRITICAL else sense_reach())
+        return self.size * (CRITICAL_HALF if self.kind is MarkerKind.CRITICAL else _SENSE_REACH)
 
 
 @dataclass(frozen=True, slots=True)
@@ -121,34 +134,61 @@ def _clear(circles: list[tuple[float, float, float, Diagonal]], w: float, h: flo
 
 
 def _circles(
-    config: _Config, w: float, h: float, k: float, ts: float, tc: float
+    config: _Config, w: float, h: float, k: float, ts: float | None, tc: float | None
 ) -> list[tuple[float, float, float, Diagonal]]:
+    """Footprints of the bay's curls (at ``ts``) and diamonds (at ``tc``); ``None`` leaves that kind out."""
     circles = []
     for diagonal, tie, critical in config:
-        if tie:
+        if tie and ts is not None:
             x, y = _at(diagonal, w, h, ts)
-            circles.append((x, y, k * sense_reach(), diagonal))
-        if critical:
+            circles.append((x, y, k * _SENSE_REACH, diagonal))
+        if critical and tc is not None:
             x, y = _at(diagonal, w, h, tc)
             circles.append((x, y, k * CRITICAL_HALF, diagonal))
     return circles
 
 
 def _positions(config: _Config, w: float, h: float, k: float) -> tuple[float, float] | None:
-    """Fractions (sense, critical) nearest the usual ones at which the bay's markers all keep clear."""
+    """Fractions (sense, critical) nearest the usual ones at which the bay's markers all keep clear.
+
+    Curls and diamonds are first placed each on their own (clear of the bars, the other
+    diagonal and markers of their kind); only those positions are then tried together.
+    """
     tie = any(c[1] for c in config)
     critical = any(c[2] for c in config)
     diagonals = {c[0] for c in config}
-    sense_try = sorted(_SENSE_RANGE, key=lambda t: abs(t - SENSE_AT)) if tie else [SENSE_AT]
-    critical_try = sorted(_CRITICAL_RANGE, key=lambda t: abs(t - CRITICAL_AT)) if critical else [CRITICAL_AT]
+    smallest = min(_SENSE_REACH if tie else CRITICAL_HALF, CRITICAL_HALF if critical else _SENSE_REACH)
+    if min(w, h) < 2 * (k * smallest + CLEARANCE):
+        return None  # not even one marker fits between two bars
+    senses = (
+        [t for t in _SENSE_ORDER if _clear(_circles(config, w, h, k, t, None), w, h, diagonals)] if tie else [SENSE_AT]
+    )
+    crits = (
+        [t for t in _CRITICAL_ORDER if _clear(_circles(config, w, h, k, None, t), w, h, diagonals)]
+        if critical
+        else [CRITICAL_AT]
+    )
     pairs = sorted(
-        ((ts, tc) for ts in sense_try for tc in critical_try),
-        key=lambda p: abs(p[0] - SENSE_AT) + abs(p[1] - CRITICAL_AT),
+        ((ts, tc) for ts in senses for tc in crits), key=lambda p: abs(p[0] - SENSE_AT) + abs(p[1] - CRITICAL_AT)
     )
     for ts, tc in pairs:
         if _clear(_circles(config, w, h, k, ts, tc), w, h, diagonals):
             return ts, tc
     return None
+
+
+def _largest_size(config: _Config, w: float, h: float) -> float | None:
+    """The largest size of :data:`SIZES` at which the bay's markers fit (fitting is monotone in size)."""
+    if _positions(config, w, h, SIZES[-1]) is None:
+        return None
+    lo, hi = len(SIZES) - 1, 0  # SIZES[lo] fits; find the smallest index that fits
+    while lo > hi:
+        mid = (lo + hi) // 2
+        if _positions(config, w, h, SIZES[mid]) is not None:
+            lo = mid
+        else:
+            hi = mid + 1
+    return SIZES[lo]
 
 
 def place_markers(frame: Frame, critical: Iterable[Member], *, scale: float) -> MarkerPlan:
@@ -187,7 +227,7 @@ def place_markers(frame: Frame, critical: Iterable[Member], *, scale: float) -> 
         w, h = (xs[c] - xs[c - 1]) / scale, (ys[r] - ys[r - 1]) / scale
         key = (config, w, h)
         if key not in shapes:
-            shapes[key] = next((k for k in SIZES if _positions(config, w, h, k) is not None), None)
+            shapes[key] = _largest_size(config, w, h)
         needed.append(shapes[key])
     fits = all(k is not None for k in needed)
     size = min((k for k in needed if k is not None), default=SIZES[0]) if fits else SIZES[-1]
