@@ -69,7 +69,8 @@ def main(argv: list[str]) -> None:
         project, limit = project_for(case)
         options = SolveOptions(time_limit=limit or args.limit, workers=args.workers, seed=0)
         solve, draw, size = run(project, options)
-        print(f"{case:>8} {options.time_limit:>8g} {solve:>8.2f} {draw:>8.2f} {solve + draw:>8.2f} {size / 1024:>10.0f}")
+        total = solve + draw
+        print(f"{case:>8} {options.time_limit:>8g} {solve:>8.2f} {draw:>8.2f} {total:>8.2f} {size / 1024:>10.0f}")
 
 
 if __name__ == "__main__":

@@ -263,8 +263,8 @@ def _finish(
     if proven:
         bound = added
     gap = 0.0 if added == 0 else (added - bound) / added
-    # Money is summed from the exact member prices (as the bill of materials does); the
-    # integer units only steer the search, so totals agree to the cent everywhere.
+    # Money is the sum of the members' prices to the cent (the bill's one rounding rule); the
+    # integer cost units hold exactly those prices, so the search minimised this very sum.
     cost = layout_cost(frame, costs, members)
     return FrameSolution(
         frame=dataclasses.replace(frame, members=members),

@@ -6,8 +6,9 @@ a 1.3 m end frame at 1:125 is about 10 mm wide on paper) the full-size
 markers would touch each other, the other diagonal and the bars, so each frame
 gets one marker size (the largest, in steps, at which every bay of the frame
 can place its markers) and each bay the positions along its members nearest
-the usual ones at which every marker keeps :data:`CLEARANCE` from every other
-marker, from the other diagonal in the bay and from the bay's four bars.
+the usual ones at which every marker keeps :data:`MIN_GAP` of white space from
+every other marker, from the other diagonal in the bay and from the bay's four
+bars, edge to edge (the strokes' print widths counted).
 
 Footprints are circles around the marker centre (the curl's farthest point,
 arrowhead included; the diamond's corners), so the test is conservative.
@@ -22,10 +23,16 @@ from dataclasses import dataclass
 from enum import Enum
 
 from bracegrid.model import Diagonal, Frame, Member, MemberKind
+from bracegrid.outputs.layers import Layer, member_layer
 from bracegrid.outputs.symbols import CRITICAL_HALF, sense_reach
 
-#: Gap kept between a marker and anything else, paper mm (about 2 pixels at 150 dpi).
-CLEARANCE = 0.4
+#: Least white space between a marker's strokes and any other stroke, paper mm, edge to edge: the
+#: least space between parallel lines in ISO 128-20:1996, 0.7 mm (from memory). Stroke widths are
+#: the layers' print weights (half of each on either side of its centre line).
+MIN_GAP = 0.7
+_HALF_SENSE = Layer.TIE_SENSE.spec.lineweight / 200
+_HALF_CRITICAL = Layer.CRITICAL.spec.lineweight / 200
+_HALF_BAR = Layer.FRAME.spec.lineweight / 200
 #: Marker size factors tried, largest first; below the last, markers would not read.
 SIZES: tuple[float, ...] = tuple(round(1.0 - 0.05 * k, 2) for k in range(11))
 #: Usual positions along a member from its lower end (fractions of its length).
@@ -40,6 +47,12 @@ _SENSE_REACH = sense_reach()
 #: Candidate fractions, nearest the usual ones first.
 _SENSE_ORDER = tuple(sorted(_SENSE_RANGE, key=lambda t: (abs(t - SENSE_AT), t)))
 _CRITICAL_ORDER = tuple(sorted(_CRITICAL_RANGE, key=lambda t: (abs(t - CRITICAL_AT), -t)))
+_PAIR_ORDER = tuple(
+    sorted(
+        ((a, b) for a in _SENSE_RANGE for b in _CRITICAL_RANGE),
+        key=lambda p: (abs(p[0] - SENSE_AT) + abs(p[1] - CRITICAL_AT), p),
+    )
+)
 _PAIR_ORDER = tuple(
     sorted(
         ((a, b) for a in _SENSE_RANGE for b in _CRITICAL_RANGE),
@@ -99,8 +112,10 @@ class MarkerPlan:
     markers: tuple[Marker, ...]
 
 
-# A bay's configuration: per diagonal present, (is a tie, is critical).
-_Config = tuple[tuple[Diagonal, bool, bool], ...]
+# A bay's configuration: per member, (diagonal, is a tie, is critical, half the member's printed width).
+_Config = tuple[tuple[Diagonal, bool, bool, float], ...]
+# A marker's footprint: centre x, y, radius, its own diagonal, half its stroke width.
+_Circle = tuple[float, float, float, Diagonal, float]
 
 
 def _ends(diagonal: Diagonal, w: float, h: float) -> tuple[tuple[float, float], tuple[float, float]]:
@@ -118,61 +133,59 @@ def _line_distance(p: tuple[float, float], diagonal: Diagonal, w: float, h: floa
     return abs((x1 - x0) * (y0 - p[1]) - (x0 - p[0]) * (y1 - y0)) / math.hypot(x1 - x0, y1 - y0)
 
 
-def _clear(circles: list[tuple[float, float, float, Diagonal]], w: float, h: float, diagonals: set[Diagonal]) -> bool:
-    """Every circle (x, y, radius, its own diagonal) clear of the bars, the other diagonal and each other."""
-    for i, (x, y, r, own) in enumerate(circles):
-        need = r + CLEARANCE
-        if min(x, y, w - x, h - y) < need:
+def _clear(circles: list[_Circle], w: float, h: float, lines: dict[Diagonal, float]) -> bool:
+    """Every footprint keeps :data:`MIN_GAP` of white from the bars, the other diagonal and each other."""
+    for i, (x, y, r, own, half) in enumerate(circles):
+        edge = r + half + MIN_GAP
+        if min(x, y, w - x, h - y) < edge + _HALF_BAR:
             return False
-        for other in diagonals - {own}:
-            if _line_distance((x, y), other, w, h) < need:
+        for other, other_half in lines.items():
+            if other is not own and _line_distance((x, y), other, w, h) < edge + other_half:
                 return False
-        for x2, y2, r2, _ in circles[i + 1 :]:
-            if math.hypot(x - x2, y - y2) < need + r2:
+        for x2, y2, r2, _, half2 in circles[i + 1 :]:
+            if math.hypot(x - x2, y - y2) < edge + r2 + half2:
                 return False
     return True
 
 
-def _circles(
-    config: _Config, w: float, h: float, k: float, ts: float | None, tc: float | None
-) -> list[tuple[float, float, float, Diagonal]]:
+def _circles(config: _Config, w: float, h: float, k: float, ts: float | None, tc: float | None) -> list[_Circle]:
     """Footprints of the bay's curls (at ``ts``) and diamonds (at ``tc``); ``None`` leaves that kind out."""
     circles = []
-    for diagonal, tie, critical in config:
+    for diagonal, tie, critical, _ in config:
         if tie and ts is not None:
             x, y = _at(diagonal, w, h, ts)
-            circles.append((x, y, k * _SENSE_REACH, diagonal))
+            circles.append((x, y, k * _SENSE_REACH, diagonal, _HALF_SENSE))
         if critical and tc is not None:
             x, y = _at(diagonal, w, h, tc)
-            circles.append((x, y, k * CRITICAL_HALF, diagonal))
+            circles.append((x, y, k * CRITICAL_HALF, diagonal, _HALF_CRITICAL))
     return circles
 
 
 def _positions(config: _Config, w: float, h: float, k: float) -> tuple[float, float] | None:
     """Fractions (sense, critical) nearest the usual ones at which the bay's markers all keep clear.
 
-    Curls and diamonds are first placed each on their own (clear of the bars, the other
+    Curls and diamonds are first placed each kind on its own (clear of the bars, the other
     diagonal and markers of their kind); only those positions are then tried together.
     """
     tie = any(c[1] for c in config)
     critical = any(c[2] for c in config)
-    diagonals = {c[0] for c in config}
-    smallest = min(_SENSE_REACH if tie else CRITICAL_HALF, CRITICAL_HALF if critical else _SENSE_REACH)
-    if min(w, h) < 2 * (k * smallest + CLEARANCE):
+    lines = {c[0]: c[3] for c in config}
+    if not (tie or critical):
+        return SENSE_AT, CRITICAL_AT  # no marker in this bay
+    reach = min(
+        ([k * _SENSE_REACH + _HALF_SENSE] if tie else []) + ([k * CRITICAL_HALF + _HALF_CRITICAL] if critical else [])
+    )
+    if min(w, h) < 2 * (reach + MIN_GAP + _HALF_BAR):
         return None  # not even one marker fits between two bars
-    senses = (
-        [t for t in _SENSE_ORDER if _clear(_circles(config, w, h, k, t, None), w, h, diagonals)] if tie else [SENSE_AT]
-    )
-    crits = (
-        [t for t in _CRITICAL_ORDER if _clear(_circles(config, w, h, k, None, t), w, h, diagonals)]
-        if critical
-        else [CRITICAL_AT]
-    )
-    pairs = sorted(
-        ((ts, tc) for ts in senses for tc in crits), key=lambda p: abs(p[0] - SENSE_AT) + abs(p[1] - CRITICAL_AT)
-    )
-    for ts, tc in pairs:
-        if _clear(_circles(config, w, h, k, ts, tc), w, h, diagonals):
+    senses = [t for t in _SENSE_ORDER if _clear(_circles(config, w, h, k, t, None), w, h, lines)] if tie else []
+    crits = [t for t in _CRITICAL_ORDER if _clear(_circles(config, w, h, k, None, t), w, h, lines)] if critical else []
+    if (tie and not senses) or (critical and not crits):
+        return None
+    if not (tie and critical):  # one kind only: its nearest clear position
+        return (senses[0] if tie else SENSE_AT), (crits[0] if critical else CRITICAL_AT)
+    ok_sense, ok_crit = set(senses), set(crits)
+    for ts, tc in _PAIR_ORDER:
+        if ts in ok_sense and tc in ok_crit and _clear(_circles(config, w, h, k, ts, tc), w, h, lines):
             return ts, tc
     return None
 
@@ -216,13 +229,21 @@ def place_markers(frame: Frame, critical: Iterable[Member], *, scale: float) -> 
     xs, ys = frame.x_lines(), frame.y_lines()
 
     def config_of(members: list[Member]) -> _Config:
-        return tuple((m.diagonal, m.kind is MemberKind.TIE, (m.row, m.col, m.diagonal) in crit) for m in members)
+        return tuple(
+            (
+                m.diagonal,
+                m.kind is MemberKind.TIE,
+                (m.row, m.col, m.diagonal) in crit,
+                member_layer(brace=m.kind is MemberKind.BRACE, existing=m.existing).spec.lineweight / 200,
+            )
+            for m in members
+        )
 
     shapes: dict[tuple[_Config, float, float], float | None] = {}
     needed = []
     for (r, c), members in bays.items():
         config = config_of(members)
-        if not any(tie or cr for _, tie, cr in config):
+        if not any(tie or cr for _, tie, cr, _ in config):
             continue
         w, h = (xs[c] - xs[c - 1]) / scale, (ys[r] - ys[r - 1]) / scale
         key = (config, w, h)
@@ -241,7 +262,7 @@ def place_markers(frame: Frame, critical: Iterable[Member], *, scale: float) -> 
             chosen[key] = _positions(config, w, h, size) or (SENSE_AT, CRITICAL_AT)
         ts, tc = chosen[key]
         ox, oy = xs[c - 1] / scale, ys[r - 1] / scale
-        for m, (_, tie, is_critical) in zip(members, config, strict=True):
+        for m, (_, tie, is_critical, _) in zip(members, config, strict=True):
             if tie:
                 x, y = _at(m.diagonal, w, h, ts)
                 kind = (
