@@ -257,7 +257,7 @@ def test_critical_mark_reads_clear_in_the_preview() -> None:
     sheet = build_drawing(Project("p", (frame,)), when=WHEN)
     (marker,) = [e for e in sheet.doc.modelspace().query("INSERT") if e.dxf.name == CRITICAL_BLOCK and
                  e.dxf.layer != Layer.LEGEND.layer_name]  # fmt: skip
-    dpi = 600
+    dpi = 300
     image = imread(io.BytesIO(render_preview(sheet, PreviewFormat.PNG, dpi=dpi)), format="png")[..., :3]
     scale, px_per_mm = sheet.plan.scale, dpi / 25.4
     height = image.shape[0]

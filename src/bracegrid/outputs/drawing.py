@@ -359,7 +359,7 @@ def outline_points(opening: Opening, *, inset_mm: float) -> list[tuple[float, fl
     Example:
         >>> from bracegrid.model import Opening
         >>> outline_points(Opening("door", ((0, 0), (1000, 0), (1000, 2000), (0, 2000))), inset_mm=100)[:2]
-        [(100.0, 100.0), (900.0, 100.0)]
+        [(100.0, 100.0), (100.0, 1900.0)]
     """
     polygon = opening_polygon(opening)
     inner = polygon.buffer(-inset_mm, join_style="mitre") if polygon.is_valid else polygon
