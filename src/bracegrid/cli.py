@@ -1,7 +1,8 @@
 """Command-line shell over the library. The only module that prints.
 
-Exit codes: 0 success (stable), 1 not stable, 2 bad input, 3 proven
-infeasible, 4 solver limit reached with no layout, 70 internal error.
+Exit codes: 0 success (stable; for ``forces``: within capacity), 1 not stable (for
+``forces``: over capacity or a mechanism), 2 bad input, 3 proven infeasible, 4 solver limit
+reached with no layout, 70 internal error.
 """
 
 from __future__ import annotations
@@ -9,6 +10,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import webbrowser
 from collections.abc import Callable, Sequence
 from datetime import date
 from pathlib import Path
@@ -17,34 +19,46 @@ from typing import Any, TextIO, TypeVar
 from rich.progress import Progress
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, check_frame
+from bracegrid.analysis import CAUTION, check_frame, remove_members
 from bracegrid.compare import StrategyKey, compare_project
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
     MEMBER_REF_HELP,
-    OutputFile,
     check_out_folder,
     load_project,
     parse_member_refs,
     save_project,
     write_outputs,
 )
+from bracegrid.mechanics import FrameForces, analyse_frame
 from bracegrid.model import Frame, MemberKind, Project
 from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
-    build_drawing,
     check_dict,
     compare_dict,
-    dxf_bytes,
+    force_summary_lines,
+    forces_dict,
     optimize_dict,
     parse_formats,
     progress_line,
     render_check,
     render_compare,
-    render_compare_csv,
-    render_html,
+    render_compare_outputs,
+    render_force_files,
+    render_forces,
     render_optimize,
     render_outputs,
+)
+from bracegrid.web import (
+    EditorPaths,
+    EditorSession,
+    GuardRules,
+    bind_socket,
+    bound_port,
+    check_bind_address,
+    create_app,
+    new_token,
+    serve,
 )
 
 _T = TypeVar("_T")
@@ -104,11 +118,17 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     target = _without_frame(project, args)
     taken = _flagged("--without", lambda: parse_member_refs(target, args.without)) if target is not None else ()
-    verdicts = [check_frame(f, without=taken if f is target else ()) for f in _frames(project, args.frame)]
+    chosen = _frames(project, args.frame)
+    verdicts = [check_frame(f, without=taken if f is target else ()) for f in chosen]
+    forces = {
+        f.name: analyse_frame(f, project.strength, members=remove_members(f, taken if f is target else ()))
+        for f in chosen
+        if f.loads
+    }
     if args.json:
-        _emit(out, check_dict(verdicts))
+        _emit(out, check_dict(verdicts, forces=forces))
     else:
-        out.write(render_check(project.name, verdicts))
+        out.write(render_check(project.name, verdicts, notes=force_summary_lines(list(forces.values()))))
         if target is not None and not all(v.stable for v in verdicts):
             refs = " ".join(args.without)
             out.write(
@@ -140,6 +160,40 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
         out.write(f"wrote {path}\n")
     out.write(f"Caution: {CAUTION}\n")
     return EXIT_OK
+
+
+def _cmd_forces(args: argparse.Namespace, out: TextIO) -> int:
+    formats = _flagged("--format", lambda: parse_formats(args.format))
+    project = load_project(args.project)
+    frames = [f for f in _frames(project, args.frame) if f.loads]
+    if args.case is not None:
+        frames = [f for f in frames if any(c.name == args.case for c in f.loads)]
+    if not frames:
+        where = f"frame {args.frame!r}" if args.frame else "the project"
+        what = f"no load case named {args.case!r}" if args.case else "no load cases"
+        msg = (
+            f"{args.project}: {where} has {what}; add [[frame.load]] tables with name and horizontal "
+            "(see docs/project-file.md)"
+        )
+        raise InputError(msg)
+    folder = _flagged("--out", lambda: check_out_folder(Path(args.out))) if args.out else None
+    cases = [args.case] if args.case is not None else None
+    results: list[FrameForces] = [analyse_frame(f, project.strength, cases=cases) for f in frames]
+    written: tuple[Path, ...] = ()
+    if folder is not None:
+        _, files = render_force_files(
+            project, results, stem=Path(args.project).stem, formats=formats, when=date.today()
+        )
+        written = write_outputs(folder, files)
+    if args.json:
+        payload = forces_dict(results)
+        payload["files"] = [str(p) for p in written]
+        _emit(out, payload)
+    else:
+        out.write(render_forces(project.name, results))
+        for path in written:
+            out.write(f"wrote {path}\n")
+    return EXIT_OK if all(r.ok for r in results) else EXIT_UNSTABLE
 
 
 def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
@@ -246,15 +300,7 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
             progress.advance(task)
 
         comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
-    today = date.today()
-    files = [OutputFile(f"{source.stem}-compare.csv", render_compare_csv(comparison).encode("utf-8"))]
-    for key in StrategyKey:
-        solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
-        if solved:
-            doc = build_drawing(project, frames=solved, when=today).doc
-            files.append(OutputFile(f"{source.stem}-{key.value}.dxf", dxf_bytes(doc)))
-    page = render_html(comparison, when=today, time_limit=args.time_limit)
-    files.append(OutputFile("report.html", page.encode("utf-8")))
+    files = render_compare_outputs(comparison, stem=source.stem, when=date.today(), time_limit=args.time_limit)
     written = write_outputs(folder, files)
     if args.json:
         payload = compare_dict(comparison)
@@ -264,6 +310,34 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
         out.write(render_compare(comparison))
         for path in written:
             out.write(f"wrote {path}\n")
+    return EXIT_OK
+
+
+def _cmd_edit(args: argparse.Namespace, out: TextIO) -> int:
+    host, loopback = _flagged("--bind", lambda: check_bind_address(args.bind))
+    paths = _flagged("--out", lambda: EditorPaths.beside(args.project, out=args.out))
+    session = EditorSession(paths)  # reads and validates the project: bad input stops here
+    sock = _flagged("--port", lambda: bind_socket(host, args.port))
+    rules = GuardRules.bound(host, bound_port(sock), new_token())
+    url = rules.url()
+    out.write(f"{url}\n")
+    out.flush()
+    if not loopback:
+        sys.stderr.write(
+            f"warning: the editor listens on {host}, not only on this computer: anyone who can reach that "
+            "address and learns the URL can read and change the project. Use it only on a network you trust.\n"
+        )
+    sys.stderr.write(f"editing {paths.project} (backup {paths.backup.name}, outputs in {paths.out}); Ctrl-C stops\n")
+    sys.stderr.flush()
+    if not args.no_browser:
+        webbrowser.open(url)
+    try:
+        serve(create_app(session, rules), sock)
+    except KeyboardInterrupt:  # a second Ctrl-C, or the signal raised again after a clean shutdown
+        pass
+    finally:
+        sock.close()
+    out.write("stopped\n")
     return EXIT_OK
 
 
@@ -339,6 +413,23 @@ def build_parser() -> argparse.ArgumentParser:
     )  # fmt: skip
     opt.set_defaults(handler=_cmd_optimize)
 
+    frc = sub.add_parser(
+        "forces",
+        help="member forces, reactions and sway under each load case (tension-only ties), utilisation",
+        description="Analyse every frame with load cases as a pin-jointed bar framework (direct stiffness, "
+        "ties in tension only): the force in every diagonal, standard and ledger, support reactions and uplift, "
+        "the sway of every line and each lift's drift, and each member's utilisation against its capacity. "
+        "Exit code 0 when everything is within capacity, 1 when something is over or a case finds a mechanism.",
+    )
+    _add_common(frc)
+    frc.add_argument("--case", metavar="NAME", help="only this load case (both senses if it reverses)")
+    frc.add_argument("--out", metavar="DIR", help="write the member-force CSV and the force sheets into this folder")
+    frc.add_argument(
+        "--format", default="dxf,png", metavar="LIST",
+        help="force sheet formats with --out, comma-separated: dxf, svg, png, pdf (default: dxf,png)",
+    )  # fmt: skip
+    frc.set_defaults(handler=_cmd_forces)
+
     cmp_ = sub.add_parser(
         "compare",
         help="cost braces-only, ties-only, mixed, mixed N-1 and a rule-of-thumb layout side by side",
@@ -353,6 +444,25 @@ def build_parser() -> argparse.ArgumentParser:
     cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
     cmp_.set_defaults(handler=_cmd_compare)
+
+    edit = sub.add_parser(
+        "edit",
+        help="edit the layout in the browser: click bays, see the verdict live, optimize, save back",
+        description="Start a local editor for the project and open it in the browser. The first line printed is "
+        "the page's URL with its access token. Only the project file, its backup (NAME.toml.bak) and the output "
+        "folder are touched. Ctrl-C stops it.",
+    )
+    edit.add_argument("project", help="project file (TOML)")
+    edit.add_argument("--port", type=int, default=0, metavar="N", help="port to listen on (default 0: any free port)")
+    edit.add_argument("--no-browser", action="store_true", help="print the URL only; do not open a browser")
+    edit.add_argument(
+        "--out", metavar="DIR", help="folder for compare files and saved copies (default: <project>-edit)"
+    )
+    edit.add_argument(
+        "--bind", default="127.0.0.1", metavar="ADDRESS",
+        help="address to listen on (default 127.0.0.1, this computer only; another address prints a warning)",
+    )  # fmt: skip
+    edit.set_defaults(handler=_cmd_edit)
     return parser
 
 

@@ -70,6 +70,17 @@ def parse_length(value: object, *, unit: str = "m") -> int:
     return round(number * MM_PER_UNIT[name])
 
 
+def length_in_unit(length_mm: int, unit: str) -> float | int:
+    """A millimetre length in a project's unit, as a project file writes it (whole numbers stay whole).
+
+    Example:
+        >>> length_in_unit(2400, "m"), length_in_unit(3000, "m"), length_in_unit(3048, "ft")
+        (2.4, 3, 10)
+    """
+    value = length_mm / MM_PER_UNIT[unit]
+    return int(value) if float(value).is_integer() else round(value, 6)
+
+
 def mm_to_m(length_mm: float) -> float:
     """Convert millimetres to metres.
 

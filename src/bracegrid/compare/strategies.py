@@ -31,12 +31,14 @@ from enum import Enum
 from bracegrid.analysis import Verdict, check_layout, redundancy_of
 from bracegrid.compare.baseline import rule_of_thumb_layout
 from bracegrid.errors import InfeasibleError
+from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
 from bracegrid.model import (
     CostCatalogue,
     Frame,
     Member,
     MemberKind,
     Project,
+    StrengthCatalogue,
     layout_cost,
     layout_cost_cents,
     layout_length_mm,
@@ -111,6 +113,8 @@ class StrategyResult:
         note: Why infeasible, or what the repair added.
         kept_braces: Braces already in place, kept by every strategy.
         kept_ties: Ties already in place, kept by every strategy.
+        forces: The layout's member forces under the frame's load cases (None without loads, or
+            when the project lacks a stiffness the layout needs).
     """
 
     key: StrategyKey
@@ -129,6 +133,7 @@ class StrategyResult:
     note: str = ""
     kept_braces: int = 0
     kept_ties: int = 0
+    forces: FrameForces | None = None
 
     @property
     def added_braces(self) -> int:
@@ -294,6 +299,14 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
                           seconds=time.perf_counter() - t0, note=note)  # fmt: skip
 
 
+def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> StrategyResult:
+    """The result with its layout's member forces, where the frame has loads and the stiffness is given."""
+    layout = result.frame
+    if strength is None or layout is None or not layout.loads or missing_stiffness(layout, strength, layout.members):
+        return result
+    return dataclasses.replace(result, forces=analyse_frame(layout, strength))
+
+
 def compare_frame(
     frame: Frame,
     costs: CostCatalogue,
@@ -301,6 +314,7 @@ def compare_frame(
     options: SolveOptions | None = None,
     bare: bool = False,
     on_progress: Callable[[str, StrategyKey], None] | None = None,
+    strength: StrengthCatalogue | None = None,
 ) -> FrameComparison:
     """Solve one frame under every strategy.
 
@@ -311,6 +325,8 @@ def compare_frame(
         options: Solver options (default :class:`SolveOptions`); the time limit applies to each strategy.
         bare: Drop every member and start each strategy from the bare frame.
         on_progress: Called with (frame name, strategy) as each strategy starts.
+        strength: Stiffness and capacities: with them, every layout of a frame with load cases gets
+            its member forces.
 
     Returns:
         The comparison, every layout re-verified.
@@ -325,7 +341,7 @@ def compare_frame(
             results.append(_baseline(frame, costs, options))
         else:
             results.append(_optimized(key, frame, costs, options))
-    return FrameComparison(frame=frame, strategies=tuple(results))
+    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength) for r in results))
 
 
 def compare_project(
@@ -341,6 +357,9 @@ def compare_project(
     return Comparison(
         project=project,
         frames=tuple(
-            compare_frame(f, project.costs, options=options, bare=bare, on_progress=on_progress) for f in chosen
+            compare_frame(
+                f, project.costs, options=options, bare=bare, on_progress=on_progress, strength=project.strength
+            )
+            for f in chosen
         ),
     )

@@ -3,12 +3,13 @@
 from bracegrid.io.atomic import (
     OutputFile,
     check_out_folder,
+    replace_with_backup,
     write_atomic,
     write_bytes_atomic,
     write_outputs,
     write_text_atomic,
 )
-from bracegrid.io.reading import load_project, parse_project
+from bracegrid.io.reading import load_project, parse_project, project_from_data
 from bracegrid.io.refs import MEMBER_REF_HELP, parse_member_refs
 from bracegrid.io.writing import render_project, save_project
 
@@ -19,7 +20,9 @@ __all__ = [
     "load_project",
     "parse_member_refs",
     "parse_project",
+    "project_from_data",
     "render_project",
+    "replace_with_backup",
     "save_project",
     "write_atomic",
     "write_bytes_atomic",

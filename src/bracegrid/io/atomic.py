@@ -72,6 +72,36 @@ def write_bytes_atomic(path: str | Path, data: bytes) -> Path:
     return write_atomic(path, put)
 
 
+def replace_with_backup(path: str | Path, text: str, *, backup: str | Path) -> Path:
+    """Replace a file atomically, keeping its previous contents as the one backup.
+
+    The backup is written (atomically) first, from the bytes on disk now, so at every moment
+    either the old file or the new one is at ``path`` and the old one is never lost.
+
+    Args:
+        path: The file to replace (it may not exist yet: then no backup is written).
+        text: Its new contents (UTF-8).
+        backup: Where the previous contents go (overwritten: one backup, not a series).
+
+    Returns:
+        The destination path.
+
+    Raises:
+        ExportError: If either file cannot be written.
+    """
+    dest = Path(path)
+    try:
+        old = dest.read_bytes()
+    except FileNotFoundError:
+        old = None
+    except OSError as exc:
+        msg = f"cannot read {dest} to back it up: {exc.strerror or exc}"
+        raise ExportError(msg) from None
+    if old is not None:
+        write_bytes_atomic(backup, old)
+    return write_text_atomic(dest, text)
+
+
 @dataclass(frozen=True, slots=True)
 class OutputFile:
     """One file of an output set, rendered in memory before anything is written.

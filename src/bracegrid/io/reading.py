@@ -20,6 +20,7 @@ from typing import Any, TypeVar
 from shapely.geometry import box
 from shapely.validation import explain_validity
 
+import bracegrid.io.loads as loads
 from bracegrid.errors import InputError
 from bracegrid.model import (
     CostCatalogue,
@@ -38,11 +39,11 @@ from bracegrid.units import MM_PER_UNIT, parse_length
 
 _PROJECT_KEYS = {"name", "length_unit"}
 _COST_KEYS = {*(k.value for k in MemberKind), "contingency_pct"}
-_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"}
+_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-}  # fmt: skip
+} | loads.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -428,9 +429,39 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
     except tomllib.TOMLDecodeError as exc:
         msg = f"not valid TOML: {exc}; fix the syntax at that place"
         raise InputError(msg, source=source) from None
+    return project_from_data(data, source=source, text=text)
+
+
+def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: str = "") -> Project:
+    """Validate a project given as the tables of a parsed project file (what ``tomllib`` returns).
+
+    Shells that edit a project (the browser editor) hand their edits over in the file's own
+    field names, so every value is checked by the same rules and worded in the same messages
+    as a file.
+
+    Args:
+        data: The parsed tables: ``project``, ``costs``, ``frame`` as in a project file.
+        source: Name used in error messages.
+        text: The TOML text the tables came from, if any (messages then carry line numbers).
+
+    Returns:
+        The validated project.
+
+    Raises:
+        InputError: With every problem found.
+
+    Example:
+        >>> costs = {"brace": {"per_piece": 25.0, "per_metre": 8.0}, "tie": {"per_piece": 9.0, "per_metre": 3.0}}
+        >>> frame = {"name": "f", "widths": [3.0, "x"], "heights": [2.0]}
+        >>> try:
+        ...     project_from_data({"project": {"name": "p"}, "costs": costs, "frame": [frame]})
+        ... except InputError as exc:
+        ...     print(exc.problems[0].split(";")[0])
+        frame 'f'.widths[2]: cannot read 'x' as a length
+    """
     col = _Collector()
     lines = _Lines.scan(text)
-    col.unknown_keys("top level", data, {"project", "costs", "frame"})
+    col.unknown_keys("top level", data, {"project", "costs", "frame"} | loads.TOP_KEYS)
     head = col.table("[project]", data.get("project", {}))
     name = "untitled"
     unit = "m"
@@ -454,13 +485,14 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
     for index, raw in enumerate(raw_frames):
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
-            frames.append(got)
+            frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
+    strength = loads.read_strength(col, data, frames)
     if col.problems or costs is None:
         raise InputError(col.problems or ["costs could not be read"], source=source)
-    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source)
+    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source, strength=strength)
 
 
 def load_project(path: str | Path) -> Project:

@@ -8,6 +8,7 @@ from typing import Any
 import tomli_w
 
 from bracegrid.io.atomic import write_text_atomic
+from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
 from bracegrid.model import CostRate, Frame, MemberKind, Project
 from bracegrid.units import MM_PER_UNIT
 
@@ -54,6 +55,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
             }
             for m in sorted(frame.members, key=lambda m: m.sort_key)
         ]
+    out.update(frame_load_fields(frame))
     return out
 
 
@@ -66,13 +68,17 @@ def render_project(project: Project) -> str:
         >>> "widths = [\\n    3,\\n]" in text or "widths = [3]" in text
         True
     """
-    costs: dict[str, Any] = {k.value: _rate(project.costs.rate(k)) for k in MemberKind}
+    costs: dict[str, Any] = {
+        k.value: _rate(project.costs.rate(k)) | strength_fields(project.strength.of(k)) for k in MemberKind
+    }
     if project.costs.contingency_pct:
         costs["contingency_pct"] = project.costs.contingency_pct
     head: dict[str, Any] = {"name": project.name}
     if project.length_unit != "m":
         head["length_unit"] = project.length_unit
     doc = {"project": head, "costs": costs, "frame": [_frame(f, project.length_unit) for f in project.frames]}
+    if grid := grid_table(project.strength):
+        doc = {"project": head, "costs": costs, "grid": grid, "frame": doc["frame"]}
     return tomli_w.dumps(doc)
 
 

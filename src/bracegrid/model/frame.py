@@ -11,7 +11,8 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from bracegrid.model.costs import CostCatalogue
-from bracegrid.model.kinds import Diagonal, MemberKind, Supports
+from bracegrid.model.kinds import Diagonal, Edge, MemberKind, Supports
+from bracegrid.model.loads import LoadCase, StrengthCatalogue
 from bracegrid.units import cut_length_mm, diagonal_mm
 
 
@@ -80,6 +81,9 @@ class Frame:
         opening_overlap: A bay is blocked by an opening when the overlap area
             exceeds this fraction of the bay area (0 = any positive area).
         redundancy: Members whose loss the layout must survive (0 = none).
+        loads: Load cases for the member-force analysis (none: stability only).
+        held_edges: Edges a wall line under them holds along their own direction (plan grids,
+            ``supports`` free); they enter the force analysis only.
     """
 
     name: str
@@ -92,6 +96,8 @@ class Frame:
     members: tuple[Member, ...] = ()
     opening_overlap: float = 0.0
     redundancy: int = 0
+    loads: tuple[LoadCase, ...] = ()
+    held_edges: frozenset[Edge] = frozenset()
 
     @property
     def rows(self) -> int:
@@ -146,6 +152,7 @@ class Project:
         costs: Prices.
         length_unit: Unit of bare numbers in the file (kept for writing back).
         source: The file it was read from, if any.
+        strength: Capacities and stiffness of members, grid bars and base (force analysis).
     """
 
     name: str
@@ -153,6 +160,7 @@ class Project:
     costs: CostCatalogue = CostCatalogue()
     length_unit: str = "m"
     source: str = ""
+    strength: StrengthCatalogue = StrengthCatalogue()
 
     def frame(self, name: str) -> Frame:
         """The frame with this name.

@@ -263,7 +263,7 @@ class CutModel:
         return cp_model.LinearExpr.weighted_sum(terms, coefs)
 
     def add_cut(self, s: frozenset[int]) -> bool:
-        """Require k + 1 member arcs leaving node set S; False if already present or trivially met."""
+        """Require k + 1 member arcs leaving node set S; False if already in the model (or S is empty or everything)."""
         if s in self.cuts or not s or len(s) == self.n:
             return False
         self.cuts.add(s)

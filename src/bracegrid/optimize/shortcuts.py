@@ -64,7 +64,7 @@ class _Union:
 
 
 def existing_is_symmetric(table: BayTable) -> bool:
-    """Whether every kept arc has its reverse (so strong parts = connected parts)."""
+    """Whether the kept members' strong parts equal their connected parts (braces then act as undirected)."""
     n = table.rows + table.cols
     src, dst, _ = bay_arcs(table.exist_up, table.exist_down)
     strong, _ = strong_components(n, src, dst)

@@ -121,7 +121,7 @@ def prune(table: BayTable, add: BayCounts) -> Additions:
     for name, arr, price in (("b", cur.braces, table.brace_cost), ("r", cur.rising, table.tie_cost),
                              ("f", cur.falling, table.tie_cost)):  # fmt: skip
         for i, j in zip(*np.nonzero(arr), strict=True):
-            items.append((-int(price[i, j]), int(i), int(j), name))
+            items.extend([(-int(price[i, j]), int(i), int(j), name)] * int(arr[i, j]))  # one try per member
     items.sort()
     arrays = {"b": cur.braces, "r": cur.rising, "f": cur.falling}
     for _, i, j, name in items:

@@ -1,4 +1,4 @@
-"""The output bundle of ``bracegrid draw``: every sheet and preview and the bill, rendered in memory."""
+"""Output bundles: every file of a ``draw`` or ``compare`` run, rendered in memory before anything is written."""
 
 from __future__ import annotations
 
@@ -7,12 +7,15 @@ from collections.abc import Sequence
 from datetime import date
 from enum import Enum
 
+from bracegrid.compare import Comparison, StrategyKey
 from bracegrid.errors import InputError
 from bracegrid.io import OutputFile
 from bracegrid.model import Frame, Project
 from bracegrid.outputs.bill import build_bom, render_bom_csv, render_bom_totals_csv
 from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes
+from bracegrid.outputs.htmlreport import render_html
 from bracegrid.outputs.preview import PreviewFormat, render_preview
+from bracegrid.outputs.text import render_compare_csv
 
 
 class OutputFormat(Enum):
@@ -118,3 +121,31 @@ def render_outputs(
     files.append(OutputFile(f"{stem}-bom.csv", render_bom_csv(bom).encode("utf-8")))
     files.append(OutputFile(f"{stem}-bom-totals.csv", render_bom_totals_csv(bom).encode("utf-8")))
     return tuple(sheets), tuple(files)
+
+
+def render_compare_outputs(
+    comparison: Comparison, *, stem: str, when: date | None = None, time_limit: float | None = None
+) -> tuple[OutputFile, ...]:
+    """Render every file of a ``compare`` run in memory (nothing is written here).
+
+    Args:
+        comparison: The strategies compared.
+        stem: Base of the file names.
+        when: Title-block and report date (default: today).
+        time_limit: Seconds each strategy was given (stated in the report).
+
+    Returns:
+        ``<stem>-compare.csv``, one ``<stem>-<strategy>.dxf`` per strategy that has a layout, and
+        ``report.html``.
+    """
+    today = when or date.today()
+    project = comparison.project
+    files = [OutputFile(f"{stem}-compare.csv", render_compare_csv(comparison).encode("utf-8"))]
+    for key in StrategyKey:
+        solved = tuple(r.frame for fc in comparison.frames for r in fc.strategies if r.key is key and r.frame)
+        if solved:
+            doc = build_drawing(project, frames=solved, when=today).doc
+            files.append(OutputFile(f"{stem}-{key.value}.dxf", dxf_bytes(doc)))
+    page = render_html(comparison, when=today, time_limit=time_limit)
+    files.append(OutputFile("report.html", page.encode("utf-8")))
+    return tuple(files)

@@ -44,14 +44,19 @@ def _e(text: object) -> str:
     return html.escape(str(text), quote=True)
 
 
-def _n(value: float) -> str:
-    """A coordinate with one decimal (pixels), trailing zeros dropped."""
+def fmt_px(value: float) -> str:
+    """A coordinate with one decimal (pixels), trailing zeros dropped.
+
+    Example:
+        >>> fmt_px(12.0), fmt_px(3.14159)
+        ('12', '3.1')
+    """
     text = f"{value:.1f}"
     return text[:-2] if text.endswith(".0") else text
 
 
 def _points(pts: Sequence[tuple[float, float]], *, unit: float = 1.0) -> str:
-    return " ".join(f"{_n(x * unit)},{_n(-y * unit)}" for x, y in pts)
+    return " ".join(f"{fmt_px(x * unit)},{fmt_px(-y * unit)}" for x, y in pts)
 
 
 def symbol_defs() -> str:
@@ -73,8 +78,9 @@ def symbol_defs() -> str:
     diamond = _points(critical_diamond(), unit=u)
     parts.append(
         f'<symbol id="bg-crit" overflow="visible"><polygon points="{diamond}" fill="#fff" stroke="{_COLORS["crit"]}"'
-        f' stroke-width="1.2"/><line x1="0" y1="{_n(-1.05 * u)}" x2="0" y2="{_n(0.25 * u)}" stroke="{_COLORS["crit"]}"'
-        f' stroke-width="1.2"/><circle cx="0" cy="{_n(0.75 * u)}" r="0.8" fill="{_COLORS["crit"]}"/></symbol>'
+        f' stroke-width="1.2"/><line x1="0" y1="{fmt_px(-1.05 * u)}" x2="0" y2="{fmt_px(0.25 * u)}"'
+        f' stroke="{_COLORS["crit"]}"'
+        f' stroke-width="1.2"/><circle cx="0" cy="{fmt_px(0.75 * u)}" r="0.8" fill="{_COLORS["crit"]}"/></symbol>'
     )
     parts.append(
         '<pattern id="bg-hatch" patternUnits="userSpaceOnUse" width="6" height="6" patternTransform="rotate(45)">'
@@ -94,11 +100,11 @@ def _arc_path(radius: float, start_deg: float, end_deg: float) -> str:
     x0, y0 = radius * math.cos(a0), -radius * math.sin(a0)
     x1, y1 = radius * math.cos(a1), -radius * math.sin(a1)
     large = 1 if sweep > 180.0 else 0
-    return f"M{_n(x0)},{_n(y0)} A{_n(radius)},{_n(radius)} 0 {large} 0 {_n(x1)},{_n(y1)}"
+    return f"M{fmt_px(x0)},{fmt_px(y0)} A{fmt_px(radius)},{fmt_px(radius)} 0 {large} 0 {fmt_px(x1)},{fmt_px(y1)}"
 
 
-def _scale(frame: Frame) -> float:
-    """Pixels per frame millimetre."""
+def bay_scale(frame: Frame) -> float:
+    """Pixels per frame millimetre: fit the preferred size, but keep every bay at least :data:`MIN_BAY_PX`."""
     fit = min(FIT_WIDTH_PX / frame.width_mm, FIT_HEIGHT_PX / frame.height_mm)
     smallest = min(*frame.widths, *frame.heights)
     largest = max(*frame.widths, *frame.heights)
@@ -122,7 +128,7 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
         >>> frame_svg(f, check_frame(f), title="bare").startswith("<svg")
         True
     """
-    s = _scale(frame)
+    s = bay_scale(frame)
     xs, ys = frame.x_lines(), frame.y_lines()
     w_px, h_px = frame.width_mm * s, frame.height_mm * s
     tags = {k: part_label(k, p.racking) for k, p in enumerate(verdict.loose_parts, start=1) if p.rows}
@@ -134,8 +140,8 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
         return (left + x_mm * s, top + h_px - y_mm * s)
 
     out = [
-        f'<svg xmlns="http://www.w3.org/2000/svg" width="{_n(width)}" height="{_n(height)}" '
-        f'viewBox="0 0 {_n(width)} {_n(height)}" role="img" {_FONT} font-size="11">'
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{fmt_px(width)}" height="{fmt_px(height)}" '
+        f'viewBox="0 0 {fmt_px(width)} {fmt_px(height)}" role="img" {_FONT} font-size="11">'
         f"<title>{_e(title)}</title>"
     ]
     # loose parts, blocked bays
@@ -149,19 +155,19 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
     for r, c in sorted(blocked_bays(frame)):
         x0, y1 = px(xs[c - 1], ys[r])
         out.append(
-            f'<rect x="{_n(x0)}" y="{_n(y1)}" width="{_n((xs[c] - xs[c - 1]) * s)}" '
-            f'height="{_n((ys[r] - ys[r - 1]) * s)}" fill="url(#bg-hatch)"/>'
+            f'<rect x="{fmt_px(x0)}" y="{fmt_px(y1)}" width="{fmt_px((xs[c] - xs[c - 1]) * s)}" '
+            f'height="{fmt_px((ys[r] - ys[r - 1]) * s)}" fill="url(#bg-hatch)"/>'
         )
     # bars (grid lines coincide with them)
-    bars = [f"M{_n(px(x, 0)[0])},{_n(top)}V{_n(top + h_px)}" for x in xs]
-    bars += [f"M{_n(left)},{_n(px(0, y)[1])}H{_n(left + w_px)}" for y in ys]
+    bars = [f"M{fmt_px(px(x, 0)[0])},{fmt_px(top)}V{fmt_px(top + h_px)}" for x in xs]
+    bars += [f"M{fmt_px(left)},{fmt_px(px(0, y)[1])}H{fmt_px(left + w_px)}" for y in ys]
     out.append(f'<path d="{"".join(bars)}" stroke="#1d2327" stroke-width="1" fill="none"/>')
     # openings: outline set in by 2 px, name on a white box in a bay of the opening
     taken = set(frame.blocked)
     for opening in frame.openings:
         pts = [px(x, y) for x, y in outline_points(opening, inset_mm=2.5 / s)]
         out.append(
-            f'<polygon points="{" ".join(f"{_n(a)},{_n(b)}" for a, b in pts)}" fill="none" '
+            f'<polygon points="{" ".join(f"{fmt_px(a)},{fmt_px(b)}" for a, b in pts)}" fill="none" '
             f'stroke="{_COLORS["opening"]}" stroke-width="1.5" stroke-dasharray="4 2"/>'
         )
     # members, then markers
@@ -171,7 +177,7 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
         a, b = ((x0, y0), (x1, y1)) if m.diagonal is Diagonal.RISING else ((x0, y1), (x1, y0))
         (ax, ay), (bx, by) = px(*a), px(*b)
         key = f"{'brace' if m.kind is MemberKind.BRACE else 'tie'}-{'old' if m.existing else 'new'}"
-        lines[key].append(f"M{_n(ax)},{_n(ay)}L{_n(bx)},{_n(by)}")
+        lines[key].append(f"M{fmt_px(ax)},{fmt_px(ay)}L{fmt_px(bx)},{fmt_px(by)}")
     looks = {
         "brace-new": f'stroke="{_COLORS["new"]}" stroke-width="2.6"',
         "brace-old": f'stroke="{_COLORS["old"]}" stroke-width="1.6"',
@@ -186,7 +192,7 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
     for marker in place_markers(frame, verdict.critical_members, scale=unit_mm).markers:
         cx, cy = px(marker.x * unit_mm, marker.y * unit_mm)
         size = "" if marker.size == 1.0 else f" scale({marker.size:g})"
-        out.append(f'<use href="#bg-{symbol[marker.kind]}" transform="translate({_n(cx)},{_n(cy)}){size}"/>')
+        out.append(f'<use href="#bg-{symbol[marker.kind]}" transform="translate({fmt_px(cx)},{fmt_px(cy)}){size}"/>')
     # labels on white boxes
     for r, c in sorted(frame.blocked):
         cx, cy = px((xs[c - 1] + xs[c]) / 2, (ys[r - 1] + ys[r]) / 2)
@@ -199,16 +205,19 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
     # supports, loose-part tags, bay tags
     if frame.supports is Supports.BASE:
         base = top + h_px
-        out.append(f'<path d="M{_n(left - 6)},{_n(base)}H{_n(left + w_px + 6)}" stroke="#1d2327" stroke-width="2.5"/>')
+        ground = f"M{fmt_px(left - 6)},{fmt_px(base)}H{fmt_px(left + w_px + 6)}"
+        out.append(f'<path d="{ground}" stroke="#1d2327" stroke-width="2.5"/>')
     for k, part in enumerate(verdict.loose_parts, start=1):
         if part.rows:
             r = part.rows[0]
             _, cy = px(0, (ys[r - 1] + ys[r]) / 2)
-            out.append(f'<text x="{_n(left + w_px + 6)}" y="{_n(cy + 4)}" fill="#b54708">{_e(tags[k])}</text>')
+            out.append(f'<text x="{fmt_px(left + w_px + 6)}" y="{fmt_px(cy + 4)}" fill="#b54708">{_e(tags[k])}</text>')
         else:
             c = part.columns[0]
             cx, _ = px((xs[c - 1] + xs[c]) / 2, 0)
-            out.append(f'<text x="{_n(cx)}" y="{_n(top - 3)}" text-anchor="middle" fill="#b54708">{part_tag(k)}</text>')
+            out.append(
+                f'<text x="{fmt_px(cx)}" y="{fmt_px(top - 3)}" text-anchor="middle" fill="#b54708">{part_tag(k)}</text>'
+            )
     tag = _points(bay_tag_outline(), unit=_TAG_W / 8.4)
     for r in range(1, frame.rows + 1):
         _, cy = px(0, (ys[r - 1] + ys[r]) / 2)
@@ -221,21 +230,21 @@ def frame_svg(frame: Frame, verdict: Verdict, *, title: str) -> str:
 
 
 def _rect(x: float, y: float, w: float, h: float, look: str) -> str:
-    return f'<rect x="{_n(x)}" y="{_n(y)}" width="{_n(w)}" height="{_n(h)}" {look}/>'
+    return f'<rect x="{fmt_px(x)}" y="{fmt_px(y)}" width="{fmt_px(w)}" height="{fmt_px(h)}" {look}/>'
 
 
 def _label(text: str, cx: float, cy: float) -> str:
     w = 7.0 * len(text) + 6
     return (
-        f'<rect x="{_n(cx - w / 2)}" y="{_n(cy - 8)}" width="{_n(w)}" height="16" fill="#fff"/>'
-        f'<text x="{_n(cx)}" y="{_n(cy + 4)}" text-anchor="middle">{_e(text)}</text>'
+        f'<rect x="{fmt_px(cx - w / 2)}" y="{fmt_px(cy - 8)}" width="{fmt_px(w)}" height="16" fill="#fff"/>'
+        f'<text x="{fmt_px(cx)}" y="{fmt_px(cy + 4)}" text-anchor="middle">{_e(text)}</text>'
     )
 
 
 def _tag(text: str, cx: float, cy: float, outline: str) -> str:
     return (
-        f'<polygon transform="translate({_n(cx)},{_n(cy)})" points="{outline}" fill="#fff" stroke="#1d2327"/>'
-        f'<text x="{_n(cx)}" y="{_n(cy + 4)}" text-anchor="middle" font-size="10">{_e(text)}</text>'
+        f'<polygon transform="translate({fmt_px(cx)},{fmt_px(cy)})" points="{outline}" fill="#fff" stroke="#1d2327"/>'
+        f'<text x="{fmt_px(cx)}" y="{fmt_px(cy + 4)}" text-anchor="middle" font-size="10">{_e(text)}</text>'
     )
 
 

@@ -15,9 +15,12 @@ from datetime import date
 from bracegrid._version import __version__
 from bracegrid.analysis import CAUTION, check_frame
 from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult
-from bracegrid.model import Project
+from bracegrid.mechanics import FrameForces
+from bracegrid.model import Frame, Project
 from bracegrid.outputs.bill import FrameBom, build_bom
 from bracegrid.outputs.figure import frame_svg, legend_html, symbol_defs
+from bracegrid.outputs.forcefigure import force_defs, force_legend_html, force_svg
+from bracegrid.outputs.forcetext import drift_text, util_text
 from bracegrid.outputs.terms import (
     COST,
     COUNT,
@@ -149,7 +152,31 @@ def _strategy_section(project: Project, fc: FrameComparison, s: StrategyResult) 
         f"<figure><div class=draw>{frame_svg(s.frame, verdict, title=f'{fc.frame.name}: {s.key.title}')}</div>"
         f"{legend_html()}<figcaption>{_e(caption)}</figcaption></figure>"
     )
-    return f"{title}{figure}<h4>Bill of materials</h4>{bom_table(bom)}"
+    forces = "" if s.forces is None else _force_figure(s.frame, s.forces, f"{fc.frame.name}: {s.key.title}")
+    return f"{title}{figure}{forces}<h4>Bill of materials</h4>{bom_table(bom)}"
+
+
+def _force_figure(frame: Frame, forces: FrameForces, title: str) -> str:
+    """The layout under its governing load case (or its first mechanism), drawn for the page."""
+    governing = forces.governing
+    shown = forces.mechanisms[:1] or tuple(c for c in forces.cases if governing and c.title == governing.case)[:1]
+    if not shown:
+        return ""
+    case = shown[0]
+    if forces.mechanisms:
+        words = f"MECHANISM under {', '.join(c.title for c in forces.mechanisms)}: no forces"
+    else:
+        state = "within capacity" if forces.ok else "OVER CAPACITY"
+        words = (
+            f"under its load cases: max utilisation {util_text(forces.max_utilisation)}, max drift "
+            f"{drift_text(forces.max_drift)}; {state}; governing case {case.title} shown"
+        )
+    rated = any(m.utilisation is not None for m in case.members)
+    svg = force_svg(frame, case, title=f"{title}: {case.title}")
+    return (
+        f"<h4>Member forces</h4><figure><div class=draw>{svg}</div>{force_legend_html(rated=rated)}"
+        f"<figcaption>{_e(words)}</figcaption></figure>"
+    )
 
 
 def render_html(comparison: Comparison, *, when: date | None = None, time_limit: float | None = None) -> str:
@@ -171,6 +198,7 @@ def render_html(comparison: Comparison, *, when: date | None = None, time_limit:
         '<meta name=viewport content="width=device-width, initial-scale=1">',
         f"<title>Bracing alternatives: {_e(project.name)}</title><style>{_STYLE}</style></head><body>",
         symbol_defs(),
+        force_defs() if any(r.forces is not None for fc in comparison.frames for r in fc.strategies) else "",
         f"<h1>Bracing alternatives: {_e(project.name)}</h1>",
         f"<p class=meta>{day.isoformat()} · bracegrid {_e(__version__)}"
         + (f" · solver limit {time_limit:g} s per strategy" if time_limit else "")

@@ -24,14 +24,15 @@ import math
 from dataclasses import dataclass
 from enum import Enum
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, Protocol
 
 from bracegrid.errors import ExportError
 from bracegrid.io import write_bytes_atomic
-from bracegrid.outputs.drawing import DrawnSheet
+from bracegrid.outputs.sheet import SheetPlan
 
 if TYPE_CHECKING:
     from ezdxf.addons.drawing.properties import Properties
+    from ezdxf.document import Drawing
     from ezdxf.entities.dxfgfx import DXFGraphic
     from ezdxf.entities.mtext import MText
     from ezdxf.entities.polygon import DXFPolygon
@@ -49,6 +50,18 @@ _FAMILY = "DejaVu Sans"
 #: Fixed shift of hatch pattern origins, as fractions of the pattern line spacing (the add-on's
 #: random shift lies between 0.0003 and 0.001 of it).
 _HATCH_SHIFT = (0.00071, 0.00043)
+
+
+class SheetLike(Protocol):
+    """Any finished sheet: its document and its plan (stability drawings and force sheets alike)."""
+
+    @property
+    def doc(self) -> Drawing:
+        """The ezdxf document."""
+
+    @property
+    def plan(self) -> SheetPlan:
+        """Sheet size and scale."""
 
 
 class PreviewFormat(Enum):
@@ -71,7 +84,7 @@ class _TextLine:
     color: str
 
 
-def preview_pixels(sheet: DrawnSheet, *, dpi: int = 150) -> tuple[int, int]:
+def preview_pixels(sheet: SheetLike, *, dpi: int = 150) -> tuple[int, int]:
     """Width and height in pixels of a PNG preview at ``dpi``.
 
     Example:
@@ -150,7 +163,7 @@ def _frontend_class() -> type[Any]:
     return _SheetFrontend
 
 
-def render_preview(sheet: DrawnSheet, fmt: PreviewFormat, *, dpi: int = 150) -> bytes:
+def render_preview(sheet: SheetLike, fmt: PreviewFormat, *, dpi: int = 150) -> bytes:
     """Render the sheet to image bytes (the same sheet gives the same bytes).
 
     Args:
@@ -207,7 +220,7 @@ def render_preview(sheet: DrawnSheet, fmt: PreviewFormat, *, dpi: int = 150) -> 
     return buffer.getvalue()
 
 
-def write_preview(sheet: DrawnSheet, path: str | Path, fmt: PreviewFormat, *, dpi: int = 150) -> Path:
+def write_preview(sheet: SheetLike, path: str | Path, fmt: PreviewFormat, *, dpi: int = 150) -> Path:
     """Render and write a preview atomically.
 
     Raises:

@@ -6,14 +6,25 @@ tools read are fixed (see docs/). Values are Python scalars, never numpy ones.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+import re
+from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 
 from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part
-from bracegrid.compare import Comparison
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, layout_length_mm
-from bracegrid.optimize import FrameSolution, ProjectSolution
-from bracegrid.units import metres
+from bracegrid.compare import Comparison, StrategyKey
+from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
+from bracegrid.model import (
+    CostCatalogue,
+    Frame,
+    Member,
+    MemberKind,
+    Project,
+    blocked_bays,
+    layout_cost,
+    layout_length_mm,
+)
+from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution
+from bracegrid.units import length_in_unit, metres
 
 
 def member_dict(member: Member) -> dict[str, Any]:
@@ -46,13 +57,15 @@ def verdict_dict(verdict: Verdict) -> dict[str, Any]:
     }
 
 
-def check_dict(verdicts: Sequence[Verdict]) -> dict[str, Any]:
-    """The JSON object of ``bracegrid check``."""
-    return {
-        "stable": all(v.stable for v in verdicts),
-        "frames": [verdict_dict(v) for v in verdicts],
-        "caution": CAUTION,
-    }
+def check_dict(verdicts: Sequence[Verdict], *, forces: Mapping[str, FrameForces] | None = None) -> dict[str, Any]:
+    """The JSON object of ``bracegrid check`` (frames with load cases gain a ``forces`` summary)."""
+    frames = []
+    for v in verdicts:
+        item = verdict_dict(v)
+        if forces and v.frame in forces:
+            item["forces"] = force_summary_dict(forces[v.frame])
+        frames.append(item)
+    return {"stable": all(v.stable for v in verdicts), "frames": frames, "caution": CAUTION}
 
 
 def solution_counts(solution: FrameSolution) -> dict[str, Any]:
@@ -71,26 +84,27 @@ def solution_counts(solution: FrameSolution) -> dict[str, Any]:
     }
 
 
-def optimize_member_dict(member: Member, frame: Frame, costs: CostCatalogue) -> dict[str, Any]:
-    """A member of an optimized layout as JSON: whether it was kept, its cut length and price.
+def optimize_member_dict(
+    member: Member, frame: Frame | None = None, costs: CostCatalogue | None = None
+) -> dict[str, Any]:
+    """A member of a layout as JSON: whether it was kept and, given its frame and prices, its cut length and price.
 
     ``cost`` follows the bill's one rounding rule, so a frame's ``cost`` is the sum of its members'.
     """
-    cut = frame.cut_length_mm(member.row, member.col)
-    return {
-        **member_dict(member),
-        "existing": member.existing,
-        "cut_length_mm": cut,
-        "cost": costs.member_price_cents(member.kind, cut) / 100,
-    }
+    out: dict[str, Any] = {**member_dict(member), "existing": member.existing}
+    if frame is not None and costs is not None:
+        cut = frame.cut_length_mm(member.row, member.col)
+        out["cut_length_mm"] = cut
+        out["cost"] = costs.member_price_cents(member.kind, cut) / 100
+    return out
 
 
-def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue) -> dict[str, Any]:
+def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue | None = None) -> dict[str, Any]:
     """One frame's optimizer answer as a JSON-ready dict.
 
     Args:
         solution: One frame's answer.
-        costs: The prices (each member's ``cost`` is given).
+        costs: The prices; given, each member carries its ``cut_length_mm`` and ``cost``.
 
     Returns:
         name, status, cost, added_cost, bound, gap, seconds, method, counts,
@@ -162,6 +176,9 @@ def compare_rows(comparison: Comparison) -> list[dict[str, Any]]:
                     "gap": s.gap,
                     "seconds": s.seconds,
                     "note": s.note,
+                    "max_utilisation": _r(s.forces.max_utilisation) if s.forces else None,
+                    "max_drift": _r(s.forces.max_drift, 9) if s.forces else None,
+                    "within_capacity": s.forces.ok if s.forces else None,
                 }
             )
     return rows
@@ -176,5 +193,255 @@ def compare_dict(comparison: Comparison) -> dict[str, Any]:
     return {
         "project": comparison.project.name,
         "frames": [{"name": name, "strategies": items} for name, items in frames.items()],
+        "caution": CAUTION,
+    }
+
+
+# --- the browser editor (docs/editor.md) -------------------------------------------------------
+
+
+def progress_dict(event: ProgressEvent) -> dict[str, Any]:
+    """An optimizer progress event (incumbent, bound and gap while it runs) as JSON."""
+    return {
+        "frame": event.frame,
+        "cost": event.cost,
+        "bound": event.bound,
+        "gap": event.gap,
+        "seconds": round(event.seconds, 3),
+        "stage": event.stage,
+    }
+
+
+def compare_progress_dict(frame: str, key: StrategyKey, step: int, steps: int) -> dict[str, Any]:
+    """A ``compare`` progress step as JSON: which strategy of which frame is done, of how many."""
+    return {"frame": frame, "strategy": key.value, "stage": f"{frame}: {key.title}", "step": step, "steps": steps}
+
+
+def layout_summary_dict(frame: Frame, costs: CostCatalogue) -> dict[str, Any]:
+    """Member counts, diagonal length and price of a frame's layout (its members as they stand)."""
+    members = frame.members
+    length_mm = layout_length_mm(frame, members)
+    return {
+        "members": len(members),
+        "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
+        "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
+        "proposed": sum(1 for m in members if not m.existing),
+        "diagonal_length_m": metres(length_mm),
+        "cost": layout_cost(frame, costs, members),
+    }
+
+
+def editor_frame_dict(frame: Frame, unit: str) -> dict[str, Any]:
+    """A frame as the editor draws and edits it.
+
+    Sizes come twice: in whole millimetres for drawing, and in the project's length unit as the
+    file writes them, for the fields the user edits. ``blocked`` holds the bays listed in the file;
+    ``blocked_by_openings`` the further bays the openings cover.
+    """
+    listed = frame.blocked
+    return {
+        "name": frame.name,
+        "widths_mm": list(frame.widths),
+        "heights_mm": list(frame.heights),
+        "widths": [length_in_unit(w, unit) for w in frame.widths],
+        "heights": [length_in_unit(h, unit) for h in frame.heights],
+        "supports": frame.supports.value,
+        "allow": sorted(k.value for k in frame.allow),
+        "redundancy": frame.redundancy,
+        "blocked": [list(b) for b in sorted(listed)],
+        "blocked_by_openings": [list(b) for b in sorted(blocked_bays(frame) - listed)],
+        "openings": [{"name": o.name, "polygon_mm": [list(p) for p in o.polygon]} for o in frame.openings],
+        "members": [optimize_member_dict(m) for m in frame.members],
+    }
+
+
+def editor_project_dict(project: Project, *, version: str, file_name: str) -> dict[str, Any]:
+    """The project as the editor loads it, with the version its saves must name."""
+    return {
+        "name": project.name,
+        "file": file_name,
+        "version": version,
+        "length_unit": project.length_unit,
+        "frames": [editor_frame_dict(f, project.length_unit) for f in project.frames],
+        "caution": CAUTION,
+    }
+
+
+def live_check_dict(frame: Frame, verdict: Verdict, costs: CostCatalogue, *, unit: str) -> dict[str, Any]:
+    """The editor's live verdict: the check of ``bracegrid check --json`` plus counts, cost, sizes and blocked bays."""
+    return {
+        "verdict": verdict_dict(verdict),
+        "summary": layout_summary_dict(frame, costs),
+        "sizes": {
+            "widths_mm": list(frame.widths),
+            "heights_mm": list(frame.heights),
+            "width": length_in_unit(frame.width_mm, unit),
+            "height": length_in_unit(frame.height_mm, unit),
+            "unit": unit,
+        },
+        "blocked_by_openings": [list(b) for b in sorted(blocked_bays(frame) - frame.blocked)],
+        "caution": CAUTION,
+    }
+
+
+def _bay_diagonal(m: Member) -> tuple[int, int, str]:
+    return (m.row, m.col, m.diagonal.value)
+
+
+def proposal_dict(before: Frame, solution: FrameSolution) -> dict[str, Any]:
+    """An optimizer or repair answer as a proposal against the layout it started from.
+
+    ``added`` are the members the solver puts in, ``removed`` those a repair takes out, and
+    ``blocked`` the frame's listed blocked bays after it (a repair that keeps bays clear adds them).
+    """
+    old = {_bay_diagonal(m) for m in before.members}
+    new = {_bay_diagonal(m) for m in solution.members}
+    return {
+        "frame": before.name,
+        "solution": frame_solution_dict(solution),
+        "added": [optimize_member_dict(m) for m in solution.members if _bay_diagonal(m) not in old],
+        "removed": [optimize_member_dict(m) for m in before.members if _bay_diagonal(m) not in new],
+        "blocked": [list(b) for b in sorted(solution.frame.blocked)],
+        "caution": CAUTION,
+    }
+
+
+_FIELD = re.compile(r"\.(widths|heights|blocked|supports)(?:\[(\d+)\])?")
+_ITEM = re.compile(r" (member|opening) #(\d+)")
+
+
+def problems_dict(problems: Iterable[str], *, frame_names: Sequence[str] = ()) -> dict[str, Any]:
+    """Loader problems as JSON, each tied to the frame and field it names so a page can show it there.
+
+    Example:
+        >>> problems_dict(["frame 'f'.widths[2]: size must be positive"], frame_names=["f"])["problems"][0]
+        {'frame': 'f', 'field': 'widths', 'index': 2, 'message': "frame 'f'.widths[2]: size must be positive"}
+    """
+    texts = list(problems)
+    items: list[dict[str, Any]] = []
+    for text in texts:
+        where = text.split(": ", 1)[0]
+        frame = next((n for n in frame_names if f"frame {n!r}" in where), None)
+        field, index = "project", None
+        if (m := _FIELD.search(where)) is not None:
+            field, index = m.group(1), int(m.group(2)) if m.group(2) else None
+        elif (m := _ITEM.search(where)) is not None:
+            field, index = f"{m.group(1)}s", int(m.group(2))
+        elif frame is not None:
+            field = "frame"
+        items.append({"frame": frame, "field": field, "index": index, "message": text})
+    return {"error": "invalid", "message": "; ".join(texts), "problems": items}
+
+
+def error_dict(error: str, message: str, **extra: Any) -> dict[str, Any]:
+    """Any refused request as JSON: a short error word, a sentence, and what else helps the caller."""
+    return {"error": error, "message": message, **extra}
+
+
+# --------------------------------------------------------------------------- member forces
+
+
+def _r(value: float | None, digits: int = 6) -> float | None:
+    return None if value is None else round(float(value), digits) + 0.0
+
+
+def member_force_dict(m: MemberForce) -> dict[str, Any]:
+    """One bar's force as JSON (fixed keys: kind, row/col/diagonal or line/row or line/col, force_kn, utilisation).
+
+    Example:
+        >>> from bracegrid.mechanics import BarKind, MemberForce
+        >>> member_force_dict(MemberForce(BarKind.STANDARD, 3, 2, None, None, -12.5, 40.0, 0.3125))
+        {'kind': 'standard', 'line': 3, 'row': 2, 'force_kn': -12.5, 'utilisation': 0.3125, 'capacity_kn': 40.0}
+    """
+    out: dict[str, Any] = {"kind": m.kind.value}
+    if m.kind is BarKind.STANDARD:
+        out |= {"line": m.line, "row": m.row}
+    elif m.kind is BarKind.LEDGER:
+        out |= {"line": m.line, "col": m.col}
+    else:
+        out |= {"row": m.row, "col": m.col, "diagonal": m.diagonal.value if m.diagonal else None}
+    out |= {"force_kn": _r(m.force_kn), "utilisation": _r(m.utilisation), "capacity_kn": m.capacity_kn}
+    if m.kind is BarKind.TIE:
+        out["slack"] = m.slack
+    return out
+
+
+def reaction_dict(r: Reaction) -> dict[str, Any]:
+    """One support reaction as JSON (fixed keys: line, fx_kn, fy_kn)."""
+    out: dict[str, Any] = {
+        "line": r.line,
+        "fx_kn": _r(r.fx_kn),
+        "fy_kn": _r(r.fy_kn),
+        "support": r.support,
+        "p": r.p,
+        "q": r.q,
+    }
+    if r.support == "base":
+        out |= {"uplift_kn": _r(r.uplift_kn), "uplift_limit_kn": r.uplift_limit_kn, "uplift_over": r.uplift_over}
+    return out
+
+
+def case_forces_dict(c: CaseForces) -> dict[str, Any]:
+    """One load case in one sense as JSON (fixed keys: name, sense, mechanism, members, reactions, sway_mm)."""
+    governing = c.governing
+    return {
+        "name": c.case,
+        "sense": c.sense.value,
+        "mechanism": c.is_mechanism,
+        "members": [member_force_dict(m) for m in c.members],
+        "reactions": [reaction_dict(r) for r in c.reactions],
+        "sway_mm": [_r(s) for s in c.sway_mm],
+        "drift": [_r(d, 9) for d in c.drift],
+        "sway_y_mm": [_r(s) for s in c.sway_y_mm],
+        "ok": c.ok,
+        "max_utilisation": _r(c.max_utilisation),
+        "governing": None if governing is None else member_force_dict(governing),
+        "over_capacity": [member_force_dict(m) for m in c.over_capacity],
+        "uplift_over": [reaction_dict(r) for r in c.uplift_over],
+        "slack_ties": len(c.slack_ties),
+        "mechanism_kind": c.mechanism.kind.value if c.mechanism else None,
+        "mechanism_description": list(c.mechanism.words) if c.mechanism else [],
+        "load_kn": _r(c.load_kn),
+        "residual_kn": c.residual_kn,
+        "newton_steps": c.steps,
+    }
+
+
+def force_summary_dict(ff: FrameForces) -> dict[str, Any]:
+    """A frame's force results in brief (for ``check --json``)."""
+    governing = ff.governing
+    return {
+        "ok": ff.ok,
+        "max_utilisation": _r(ff.max_utilisation),
+        "max_drift": _r(ff.max_drift, 9),
+        "governing": None if governing is None else {**member_force_dict(governing.member), "case": governing.case},
+        "mechanism_cases": [c.title for c in ff.mechanisms],
+    }
+
+
+def frame_forces_dict(ff: FrameForces) -> dict[str, Any]:
+    """One frame's force analysis as JSON."""
+    return {
+        "name": ff.frame,
+        "cases": [case_forces_dict(c) for c in ff.cases],
+        "envelope": [
+            {
+                **member_force_dict(e.member),
+                "max_tension_kn": _r(e.max_tension_kn),
+                "max_compression_kn": _r(e.max_compression_kn),
+                "case": e.case,
+            }
+            for e in ff.envelope
+        ],
+        **force_summary_dict(ff),
+    }
+
+
+def forces_dict(frames: Sequence[FrameForces]) -> dict[str, Any]:
+    """The JSON object of ``bracegrid forces``."""
+    return {
+        "ok": all(f.ok for f in frames),
+        "frames": [frame_forces_dict(f) for f in frames],
+        "model_limits": MODEL_LIMITS,
         "caution": CAUTION,
     }

@@ -11,6 +11,7 @@ from rich.table import Table
 
 from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part, redundancy_words
 from bracegrid.compare import Comparison, StrategyKey
+from bracegrid.mechanics import FrameForces
 from bracegrid.model import Member
 from bracegrid.optimize import ProgressEvent, ProjectSolution
 from bracegrid.outputs.shapes import compare_rows, solution_counts
@@ -31,8 +32,8 @@ def _members_text(members: Sequence[Member], *, limit: int = 12) -> str:
     return ", ".join(labels) + more
 
 
-def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
-    """Human-readable result of ``bracegrid check``."""
+def render_check(project_name: str, verdicts: Sequence[Verdict], *, notes: Sequence[str] = ()) -> str:
+    """Human-readable result of ``bracegrid check`` (``notes``: extra lines before the caution)."""
     table = Table(title=f"Stability check: {project_name}", title_justify="left")
     for head in ("frame", "verdict", "racking modes", "braces", "ties", "weighted count", "least needed", "critical"):
         table.add_column(head, justify="left" if head in {"frame", "verdict"} else "right")
@@ -60,6 +61,7 @@ def render_check(project_name: str, verdicts: Sequence[Verdict]) -> str:
             lines.append(f"{v.frame}: {describe_part(part, anchor)}")
         if v.critical_members:
             lines.append(f"{v.frame}: critical (single loss makes it unstable): {_members_text(v.critical_members)}")
+    lines.extend(notes)
     lines.append("")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
@@ -137,13 +139,30 @@ def render_compare_csv(comparison: Comparison) -> str:
     return buffer.getvalue()
 
 
+def _force_cells(forces: FrameForces | None) -> tuple[str, str]:
+    """Max utilisation and max drift of a strategy's layout, as table cells."""
+    if forces is None:
+        return ("-", "-")
+    if forces.mechanisms:
+        return ("MECH.", "-")
+    util = forces.max_utilisation
+    drift = forces.max_drift
+    flag = "" if forces.ok else " !"
+    return (
+        "-" if util is None else f"{100 * util:.0f}%{flag}",
+        "-" if not drift else f"1/{round(1 / drift):,}",
+    )
+
+
 def render_compare(comparison: Comparison) -> str:
     """Human-readable comparison tables, one per frame."""
     lines = []
     for fc in comparison.frames:
         table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
+        loaded = any(s.forces is not None for s in fc.strategies)
+        extra = ("max util", "max drift") if loaded else ()
         for head in ("strategy", STATUS, "kept braces", "kept ties", "added braces", "added ties", LENGTH, COST,
-                     SAVING, "stable", "critical", "survives", "gap", "time s"):  # fmt: skip
+                     SAVING, "stable", "critical", "survives", *extra, "gap", "time s"):  # fmt: skip
             left = head in {"strategy", STATUS}
             table.add_column(head, justify="left" if left else "right", no_wrap=left)
         for s in fc.strategies:
@@ -161,10 +180,11 @@ def render_compare(comparison: Comparison) -> str:
                 "yes" if s.stable else "NO",
                 str(s.critical),
                 "-" if s.redundancy < 0 else f"{s.redundancy}",
+                *(_force_cells(s.forces) if loaded else ()),
                 "-" if s.gap is None else f"{100 * s.gap:.2f}%",
                 f"{s.seconds:.2f}",
             )
-        lines.append(render_table(table, width=160))
+        lines.append(render_table(table, width=180 if loaded else 160))
         for s in fc.strategies:
             if s.note:
                 lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
@@ -180,5 +200,10 @@ def render_compare(comparison: Comparison) -> str:
         "saving = rule-of-thumb baseline cost minus the strategy's cost (dearer: the strategy costs more); "
         "survives = member losses survived"
     )
+    if any(s.forces is not None for fc in comparison.frames for s in fc.strategies):
+        lines.append(
+            "max util / max drift: the layout under the frame's load cases (! = a member over capacity or a base "
+            "node lifting beyond its resistance; bracegrid forces)"
+        )
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
