@@ -66,15 +66,24 @@ def method_words(
     """
     if method is SolveMethod.PATTERN_BOUND and status is not SolveStatus.OPTIMAL:
         method = SolveMethod.WARM_START  # a bound that did not meet the layout proves nothing
-    if method is SolveMethod.CLOSED_FORM:
-        how = f"closed form: {pattern.words if pattern is not None else 'complete frame'}"
-    elif method is SolveMethod.CUT_LOOP:
-        how = f"CP-SAT directed cuts ({_count(rounds, 'round')}, {_count(cuts, 'cut')})"
-    else:
-        how = _METHOD_WORDS[method]
+    how = method_how(method, pattern=pattern, rounds=rounds, cuts=cuts)
     if status is SolveStatus.OPTIMAL:
         return f"{how}; proven optimal"
     return f"{how}; not proven optimal: the time limit came first, gap {100 * gap:.2f}% to the proven bound"
+
+
+def method_how(method: SolveMethod, *, pattern: PatternKind | None = None, rounds: int = 0, cuts: int = 0) -> str:
+    """How a layout was found, without what is proven (progress stages use it).
+
+    Example:
+        >>> method_how(SolveMethod.CUT_LOOP, rounds=1, cuts=40)
+        'CP-SAT directed cuts (1 round, 40 cuts)'
+    """
+    if method is SolveMethod.CLOSED_FORM:
+        return f"closed form: {pattern.words if pattern is not None else 'complete frame'}"
+    if method is SolveMethod.CUT_LOOP:
+        return f"CP-SAT directed cuts ({_count(rounds, 'round')}, {_count(cuts, 'cut')})"
+    return _METHOD_WORDS[method]
 
 
 def _count(n: int, word: str) -> str:

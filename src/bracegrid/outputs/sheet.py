@@ -230,7 +230,7 @@ class Pen:
 
 #: Height of a legend row, paper mm, by sample (marker samples need more room than line samples).
 _LEGEND_ROW = 4.2
-_LEGEND_TALL = {"cw": 6.0, "acw": 6.0, "crit": 6.0, "support": 5.6, "tag": 5.6, "blocked": 5.0, "opening": 5.0}
+_LEGEND_TALL = {"cw": 6.0, "acw": 6.0, "crit": 6.0, "support": 5.6, "bay": 5.6, "blocked": 5.0, "opening": 5.0}
 #: Width of the sample column, paper mm.
 _SAMPLE_W = 16.0
 _LEGEND_ROWS: tuple[tuple[str, str], ...] = (

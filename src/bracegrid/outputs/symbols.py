@@ -129,7 +129,7 @@ def _critical_block(doc: Drawing) -> None:
     """
     block = doc.blocks.new(CRITICAL_BLOCK)
     corners = critical_diamond()
-    block.add_wipeout(corners, dxfattribs={"layer": "0"})
+    block.add_wipeout(corners, dxfattribs={"layer": "0", "color": 0})
     block.add_lwpolyline(corners, close=True, dxfattribs=_BLOCK_ATTRIBS)
     block.add_line((0, 1.05), (0, -0.25), dxfattribs=_BLOCK_ATTRIBS)
     block.add_circle((0, -0.75), 0.16, dxfattribs=_BLOCK_ATTRIBS)
