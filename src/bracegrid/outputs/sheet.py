@@ -483,7 +483,7 @@ def draw_bill(pen: Pen, bom: Bom, x: float, y: float) -> None:
                     span += _COLS[j][1]
                 tx = cx + 1.0 if align == "LEFT" else cx + cw - 1.0
                 if cell:
-                    pen.text(_fit(cell, span), tx, base + 1.0, height=H_SMALL, layer=lay, align=f"BOTTOM_{align}")
+                    pen.text(_fit(cell, span), tx, base + 0.8, height=H_SMALL, layer=lay, align=f"BOTTOM_{align}")
             cx += cw
         if row.kind is not BillRowKind.ITEM:
             pen.line((x, base + _ROW), (x + w, base + _ROW), lay)
