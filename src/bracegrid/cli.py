@@ -291,8 +291,11 @@ def _solver_problems(args: argparse.Namespace) -> list[str]:
     return problems
 
 
-def _add_solver_options(p: argparse.ArgumentParser, *, per: str) -> None:
-    p.add_argument("--time-limit", type=float, default=60.0, metavar="S", help=f"seconds per {per} (default 60)")
+def _add_solver_options(p: argparse.ArgumentParser, *, per: str, whole: str) -> None:
+    p.add_argument(
+        "--time-limit", type=float, default=60.0, metavar="S",
+        help=f"bounds the solver's search: S seconds for each {per} (default 60); {whole}",
+    )  # fmt: skip
     p.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
     p.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
 
@@ -480,7 +483,9 @@ def build_parser() -> argparse.ArgumentParser:
     )
     _add_common(opt)
     opt.add_argument("--allow", metavar="KINDS", help="member kinds to add, e.g. brace,tie (default: each frame's)")
-    _add_solver_options(opt, per="frame")
+    _add_solver_options(
+        opt, per="frame's solve", whole="the whole run may take up to S x the number of frames, plus a second or two"
+    )
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
     opt.add_argument(
         "--without", nargs="+", default=[], metavar="MEMBER",
@@ -518,7 +523,10 @@ def build_parser() -> argparse.ArgumentParser:
         "strategy and a self-contained report.html. Members in place are kept; proposed ones are dropped.",
     )
     _add_common(cmp_)
-    _add_solver_options(cmp_, per="frame and strategy")
+    _add_solver_options(
+        cmp_, per="strategy's solve of each frame",
+        whole="the whole run may take up to 5 x S x the number of frames, plus the drawing (seconds)",
+    )  # fmt: skip
     cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
     cmp_.add_argument(

@@ -11,7 +11,7 @@ from bracegrid.compare import Comparison, StrategyKey, StrategyRobustness
 from bracegrid.errors import InputError
 from bracegrid.io import OutputFile
 from bracegrid.model import Frame, Project
-from bracegrid.outputs.bill import build_bom, render_bom_csv
+from bracegrid.outputs.bill import build_bom, render_bom_csv, render_bom_totals_csv
 from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes
 from bracegrid.outputs.htmlreport import render_html
 from bracegrid.outputs.preview import PreviewFormat, render_preview
@@ -89,8 +89,9 @@ def render_outputs(
         dpi: PNG resolution.
 
     Returns:
-        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet and
-        ``<stem>-bom.csv`` for the frames drawn.
+        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet,
+        ``<stem>-bom.csv`` (one row per member) and ``<stem>-bom-totals.csv`` (per frame
+        and overall) for the frames drawn.
     """
     chosen = tuple(project.frames if frames is None else frames)
     groups: list[tuple[str, tuple[Frame, ...]]]
@@ -119,6 +120,7 @@ def render_outputs(
                 )
     bom = build_bom(project, frames=chosen)
     files.append(OutputFile(f"{stem}-bom.csv", render_bom_csv(bom).encode("utf-8")))
+    files.append(OutputFile(f"{stem}-bom-totals.csv", render_bom_totals_csv(bom).encode("utf-8")))
     return tuple(sheets), tuple(files)
 
 

@@ -25,7 +25,7 @@ from bracegrid.analysis import CAUTION
 from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
 from bracegrid.model import Diagonal, Frame, Project, Supports
 from bracegrid.outputs.forcetext import drift_text, util_text
-from bracegrid.outputs.layers import Layer, LayerSpec
+from bracegrid.outputs.layers import Field, Layer, LayerSpec
 from bracegrid.outputs.sheet import (
     GAP,
     H_LABEL,
@@ -38,7 +38,14 @@ from bracegrid.outputs.sheet import (
     plan_sheet,
     title_size,
 )
-from bracegrid.outputs.symbols import BUBBLE_BLOCK, SUPPORT_BLOCK, TEXT_STYLE, setup_document, text_width
+from bracegrid.outputs.symbols import (
+    BAY_TAG_BLOCK,
+    BAY_TAG_WIDTH,
+    SUPPORT_BLOCK,
+    TEXT_STYLE,
+    setup_document,
+    text_width,
+)
 from bracegrid.units import DXF_INSUNITS
 
 if TYPE_CHECKING:
@@ -53,20 +60,25 @@ H_FORCE = 1.6
 OVER_BLOCK = "BG_FORCE_OVER"
 
 
+#: Which codes of the force layers' names are ours (the guideline edition is named in docs/drawings.md).
+_OURS = frozenset(Field)
+_OURS_MAJOR = frozenset({Field.MAJOR})
+
+
 class ForceLayer(Enum):
     """The layers of the force sheet (all ours; docs/forces.md)."""
 
-    MEMBER = LayerSpec("S-FORC-MEMB", 7, "Continuous", 50, "bars coloured by utilisation (true colour)", own=True)
-    SLACK = LayerSpec("S-FORC-SLCK", 8, "BG_TIE", 18, "slack ties: no force in this case", own=True)
+    MEMBER = LayerSpec("S-FORC-MEMB", 7, "Continuous", 50, "bars coloured by utilisation (true colour)", _OURS)
+    SLACK = LayerSpec("S-FORC-SLCK", 8, "BG_TIE", 18, "slack ties: no force in this case", _OURS)
     OVER = LayerSpec(
-        "S-FORC-OVER", 1, "Continuous", 50, "over-capacity markers and base uplift beyond its limit", own=True
+        "S-FORC-OVER", 1, "Continuous", 50, "over-capacity markers and base uplift beyond its limit", _OURS
     )
-    LABEL = LayerSpec("S-FORC-IDEN", 7, "Continuous", 18, "force labels, kN, tension +", own=True)
-    REACTION = LayerSpec("S-FORC-REAC", 5, "Continuous", 35, "support reactions: arrows and values, kN", own=True)
-    DEFLECTED = LayerSpec("S-FORC-DEFL", 6, "BG_EDGE", 18, "deflected shape, displacements exaggerated", own=True)
-    MECHANISM = LayerSpec("S-FORC-MECH", 30, "Continuous", 13, "parts a load case moves as a mechanism", own=True)
-    SCALE = LayerSpec("S-FORC-CBAR", 7, "Continuous", 18, "utilisation colour bar and symbol key", own=True)
-    NOTE = LayerSpec("S-FORC-NOTE", 7, "Continuous", 25, "case headings, notes and model limits", own=True)
+    LABEL = LayerSpec("S-FORC-IDEN", 7, "Continuous", 18, "force labels, kN, tension +", _OURS_MAJOR)
+    REACTION = LayerSpec("S-FORC-REAC", 5, "Continuous", 35, "support reactions: arrows and values, kN", _OURS)
+    DEFLECTED = LayerSpec("S-FORC-DEFL", 6, "BG_EDGE", 18, "deflected shape, displacements exaggerated", _OURS)
+    MECHANISM = LayerSpec("S-FORC-MECH", 30, "Continuous", 13, "parts a load case moves as a mechanism", _OURS)
+    SCALE = LayerSpec("S-FORC-CBAR", 7, "Continuous", 18, "utilisation colour bar and symbol key", _OURS)
+    NOTE = LayerSpec("S-FORC-NOTE", 7, "Continuous", 25, "case headings, notes and model limits", _OURS)
 
     @property
     def layer_name(self) -> str:
@@ -496,13 +508,13 @@ def _draw_panel(
     # row and column labels
     for r in range(1, frame.rows + 1):
         cy = (ys[r - 1] + ys[r]) / 2 / scale
-        bx = -(2.5 + 3.2) - (_SIDE_HELD if any(e.value == "left" for e in frame.held_edges) else 0.0)
-        pen.block(BUBBLE_BLOCK, bx, cy, Layer.GRID_LABEL)
+        bx = -(2.5 + BAY_TAG_WIDTH / 2) - (_SIDE_HELD if any(e.value == "left" for e in frame.held_edges) else 0.0)
+        pen.block(BAY_TAG_BLOCK, bx, cy, Layer.GRID_LABEL)
         pen.text(f"R{r}", bx, cy, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
     bottom = -(_BOTTOM_BASE if frame.supports is Supports.BASE else _BOTTOM_FREE) + 4.5
     for c in range(1, frame.cols + 1):
         cx = (xs[c - 1] + xs[c]) / 2 / scale
-        pen.block(BUBBLE_BLOCK, cx, bottom, Layer.GRID_LABEL)
+        pen.block(BAY_TAG_BLOCK, cx, bottom, Layer.GRID_LABEL)
         pen.text(f"C{c}", cx, bottom, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
     # headings
     first, second, third = _headings(case, factor)
@@ -650,8 +662,8 @@ def build_force_sheet(
     setup_document(doc, scale=scale)
     for layer in ForceLayer:
         spec = layer.value
-        entry = doc.layers.add(spec.name, color=spec.color, linetype=spec.linetype, lineweight=spec.lineweight)
-        entry.description = spec.description
+        # no layer description in the DXF: it would need another program's application id (docs/drawings.md)
+        doc.layers.add(spec.name, color=spec.color, linetype=spec.linetype, lineweight=spec.lineweight)
     _over_block(doc)
     msp = doc.modelspace()
     for case, origin in zip(chosen, plan.origins, strict=True):

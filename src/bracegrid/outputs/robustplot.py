@@ -9,6 +9,7 @@ drawn, not at start-up.
 from __future__ import annotations
 
 import io
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from enum import Enum
@@ -148,3 +149,18 @@ def render_robustness_plot(panels: Sequence[PlotPanel], fmt: PlotFormat, *, dpi:
         metadata = {"Date": None} if fmt is PlotFormat.SVG else {"Software": None}
         fig.savefig(buffer, format=fmt.value, dpi=dpi, facecolor="white", metadata=metadata)
     return buffer.getvalue()
+
+
+def inline_plot_svg(panels: Sequence[PlotPanel], *, prefix: str) -> str:
+    """The plot as an SVG element to place inside HTML: no XML prolog or DOCTYPE, every id prefixed.
+
+    The prefix keeps the plot's ids (glyphs, clip paths) from colliding with other inline SVGs.
+    """
+    text = render_robustness_plot(panels, PlotFormat.SVG).decode("utf-8")
+    text = re.sub(r"<\?xml[^>]*\?>", "", text)
+    text = re.sub(r"<!DOCTYPE[^>]*>", "", text, flags=re.DOTALL).strip()
+    ids = set(re.findall(r'\bid="([^"]+)"', text))
+    for ident in sorted(ids, key=len, reverse=True):
+        text = text.replace(f'id="{ident}"', f'id="{prefix}{ident}"')
+        text = text.replace(f"#{ident})", f"#{prefix}{ident})").replace(f'"#{ident}"', f'"#{prefix}{ident}"')
+    return text

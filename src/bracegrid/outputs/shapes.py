@@ -24,9 +24,18 @@ from bracegrid.analysis import (
 )
 from bracegrid.compare import Comparison, StrategyKey
 from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, blocked_bays, layout_cost
+from bracegrid.model import (
+    CostCatalogue,
+    Frame,
+    Member,
+    MemberKind,
+    Project,
+    blocked_bays,
+    layout_cost,
+    layout_length_mm,
+)
 from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution
-from bracegrid.units import length_in_unit
+from bracegrid.units import length_in_unit, metres
 
 
 def member_dict(member: Member) -> dict[str, Any]:
@@ -145,30 +154,42 @@ def robustness_dict(results: Sequence[Robustness]) -> dict[str, Any]:
 
 
 def solution_counts(solution: FrameSolution) -> dict[str, Any]:
-    """Counts and diagonal length of one frame solution."""
+    """Counts and total cut length of one frame solution (``length_mm`` whole mm, ``length_m`` the same in m)."""
     frame = solution.frame
     members = solution.members
     new = [m for m in members if not m.existing]
-    length_mm = sum(frame.diagonal_length_mm(m.row, m.col) for m in members)
+    length_mm = layout_length_mm(frame, members)
     return {
         "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
         "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
         "new_braces": sum(1 for m in new if m.kind is MemberKind.BRACE),
         "new_ties": sum(1 for m in new if m.kind is MemberKind.TIE),
-        "length_m": round(length_mm / 1000.0, 3),
+        "length_mm": length_mm,
+        "length_m": metres(length_mm),
     }
 
 
-def optimize_member_dict(member: Member) -> dict[str, Any]:
-    """A member of an optimized layout as JSON (with whether it was kept)."""
-    return {**member_dict(member), "existing": member.existing}
+def optimize_member_dict(
+    member: Member, frame: Frame | None = None, costs: CostCatalogue | None = None
+) -> dict[str, Any]:
+    """A member of a layout as JSON: whether it was kept and, given its frame and prices, its cut length and price.
+
+    ``cost`` follows the bill's one rounding rule, so a frame's ``cost`` is the sum of its members'.
+    """
+    out: dict[str, Any] = {**member_dict(member), "existing": member.existing}
+    if frame is not None and costs is not None:
+        cut = frame.cut_length_mm(member.row, member.col)
+        out["cut_length_mm"] = cut
+        out["cost"] = costs.member_price_cents(member.kind, cut) / 100
+    return out
 
 
-def frame_solution_dict(solution: FrameSolution) -> dict[str, Any]:
+def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue | None = None) -> dict[str, Any]:
     """One frame's optimizer answer as a JSON-ready dict.
 
     Args:
         solution: One frame's answer.
+        costs: The prices; given, each member carries its ``cut_length_mm`` and ``cost``.
 
     Returns:
         name, status, cost, added_cost, bound, gap, seconds, method, counts,
@@ -193,7 +214,7 @@ def frame_solution_dict(solution: FrameSolution) -> dict[str, Any]:
         "diagonal_length_m": parts["length_m"],
         "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
         "removed": [member_dict(m) for m in solution.verdict.removed],
-        "members": [optimize_member_dict(m) for m in solution.members],
+        "members": [optimize_member_dict(m, solution.frame, costs) for m in solution.members],
     }
 
 
@@ -209,7 +230,7 @@ def optimize_dict(solution: ProjectSolution) -> dict[str, Any]:
     return {
         "cost": solution.cost,
         "added_cost": solution.added_cost,
-        "frames": [frame_solution_dict(f) for f in solution.frames],
+        "frames": [frame_solution_dict(f, solution.project.costs) for f in solution.frames],
         "caution": CAUTION,
     }
 
@@ -229,7 +250,11 @@ def compare_rows(comparison: Comparison) -> list[dict[str, Any]]:
                     "stable": s.stable,
                     "braces": s.braces,
                     "ties": s.ties,
-                    "diagonal_length_m": round(s.length_mm / 1000.0, 3),
+                    "kept_braces": s.kept_braces,
+                    "kept_ties": s.kept_ties,
+                    "added_braces": s.added_braces,
+                    "added_ties": s.added_ties,
+                    "diagonal_length_m": metres(s.length_mm),
                     "critical_members": s.critical,
                     "redundancy": s.redundancy,
                     "bound": s.bound,
@@ -280,13 +305,13 @@ def compare_progress_dict(frame: str, key: StrategyKey, step: int, steps: int) -
 def layout_summary_dict(frame: Frame, costs: CostCatalogue) -> dict[str, Any]:
     """Member counts, diagonal length and price of a frame's layout (its members as they stand)."""
     members = frame.members
-    length_mm = sum(frame.diagonal_length_mm(m.row, m.col) for m in members)
+    length_mm = layout_length_mm(frame, members)
     return {
         "members": len(members),
         "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
         "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
         "proposed": sum(1 for m in members if not m.existing),
-        "diagonal_length_m": round(length_mm / 1000.0, 3),
+        "diagonal_length_m": metres(length_mm),
         "cost": layout_cost(frame, costs, members),
     }
 

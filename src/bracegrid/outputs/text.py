@@ -25,6 +25,8 @@ from bracegrid.mechanics import FrameForces
 from bracegrid.model import Member, MemberKind
 from bracegrid.optimize import ProgressEvent, ProjectSolution
 from bracegrid.outputs.shapes import compare_rows, solution_counts
+from bracegrid.outputs.terms import COST, LENGTH, SAVING, STATUS, cents, money_text, saving_text
+from bracegrid.units import metres_text
 
 
 def render_table(table: Table, *, width: int = 110) -> str:
@@ -56,7 +58,7 @@ def render_check(
         additions: For unstable frames (by name), the single additions that lock the most loose parts.
     """
     table = Table(title=f"Stability check: {project_name}", title_justify="left")
-    for head in ("frame", "verdict", "racking modes", "braces", "ties", "braces + ties/2", "critical"):
+    for head in ("frame", "verdict", "racking modes", "braces", "ties", "weighted count", "least needed", "critical"):
         table.add_column(head, justify="left" if head in {"frame", "verdict"} else "right")
     for v in verdicts:
         table.add_row(
@@ -65,10 +67,15 @@ def render_check(
             str(v.racking_modes),
             str(v.braces),
             str(v.ties),
-            f"{v.maxwell_count:g} / {v.maxwell_needed}",
+            f"{v.maxwell_count:g}",
+            str(v.maxwell_needed),
             str(len(v.critical_members)),
         )
     lines = [render_table(table)]
+    lines.append(
+        "weighted count = braces + ties/2 (a tie holds one racking sense, half a brace); least needed = the "
+        "weighted count every stable layout reaches (rows + columns - 1; rows on a pinned base)"
+    )
     for v in verdicts:
         if v.removed:
             lines.append(f"{v.frame}: checked without {_members_text(v.removed)}")
@@ -166,25 +173,28 @@ def render_optimize(project_name: str, solution: ProjectSolution) -> str:
         A table (one row per frame) and notes.
     """
     table = Table(title=f"Optimized layout: {project_name}", title_justify="left")
-    heads = ("frame", "status", "braces (new)", "ties (new)", "diagonals m", "cost", "added", "bound", "gap", "time s")
+    heads = ("frame", STATUS, "kept braces", "kept ties", "added braces", "added ties", LENGTH, COST, "added cost",
+             "bound", "gap", "time s")  # fmt: skip
     for head in heads:
-        table.add_column(head, justify="left" if head in {"frame", "status"} else "right")
+        table.add_column(head, justify="left" if head in {"frame", STATUS} else "right")
     for s in solution.frames:
         parts = solution_counts(s)
         table.add_row(
             s.frame.name,
             s.status.value.upper(),
-            f"{parts['braces']} ({parts['new_braces']})",
-            f"{parts['ties']} ({parts['new_ties']})",
-            f"{parts['length_m']:.2f}",
-            f"{s.cost:.2f}",
-            f"{s.added_cost:.2f}",
-            f"{s.bound:.2f}",
+            str(parts["braces"] - parts["new_braces"]),
+            str(parts["ties"] - parts["new_ties"]),
+            str(parts["new_braces"]),
+            str(parts["new_ties"]),
+            metres_text(parts["length_mm"]),
+            money_text(cents(s.cost)),
+            money_text(cents(s.added_cost)),
+            money_text(cents(s.bound)),
             f"{100 * s.gap:.2f}%",
             f"{s.seconds:.2f}",
         )
-    lines = [render_table(table, width=130)]
-    lines.append(f"Total cost {solution.cost:.2f} (added {solution.added_cost:.2f}).")
+    lines = [render_table(table, width=150)]
+    lines.append(f"Total cost {money_text(cents(solution.cost))} (added {money_text(cents(solution.added_cost))}).")
     for s in solution.frames:
         new = [m for m in s.members if not m.existing]
         if s.verdict.removed:
@@ -246,20 +256,22 @@ def render_compare(comparison: Comparison) -> str:
         table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
         loaded = any(s.forces is not None for s in fc.strategies)
         extra = ("max util", "max drift") if loaded else ()
-        for head in ("strategy", "status", "braces", "ties", "length m", "cost", "saving", "stable",
-                     "critical", "survives", *extra, "gap", "time s"):  # fmt: skip
-            left = head in {"strategy", "status"}
+        for head in ("strategy", STATUS, "kept braces", "kept ties", "added braces", "added ties", LENGTH, COST,
+                     SAVING, "stable", "critical", "survives", *extra, "gap", "time s"):  # fmt: skip
+            left = head in {"strategy", STATUS}
             table.add_column(head, justify="left" if left else "right", no_wrap=left)
         for s in fc.strategies:
             saving = fc.saving(s.key)
             table.add_row(
                 s.key.value,
                 s.status.value,
-                str(s.braces),
-                str(s.ties),
-                f"{s.length_mm / 1000:.2f}",
-                "-" if s.cost is None else f"{s.cost:.2f}",
-                "-" if saving is None else f"{saving:.2f}",
+                str(s.kept_braces),
+                str(s.kept_ties),
+                str(s.added_braces),
+                str(s.added_ties),
+                metres_text(s.length_mm),
+                "-" if s.cost is None else money_text(cents(s.cost)),
+                saving_text(None if saving is None else cents(saving)),
                 "yes" if s.stable else "NO",
                 str(s.critical),
                 "-" if s.redundancy < 0 else f"{s.redundancy}",
@@ -267,7 +279,7 @@ def render_compare(comparison: Comparison) -> str:
                 "-" if s.gap is None else f"{100 * s.gap:.2f}%",
                 f"{s.seconds:.2f}",
             )
-        lines.append(render_table(table, width=160 if loaded else 130))
+        lines.append(render_table(table, width=180 if loaded else 160))
         for s in fc.strategies:
             if s.note:
                 lines.append(f"{fc.frame.name} / {s.key.value}: {s.note}")
@@ -276,9 +288,13 @@ def render_compare(comparison: Comparison) -> str:
         parts = []
         for key in StrategyKey:
             total = comparison.total(key)
-            parts.append(f"{key.value} {'-' if total is None else f'{total:.2f}'}")
+            parts.append(f"{key.value} {'-' if total is None else money_text(cents(total))}")
         lines.append("All frames: " + ", ".join(parts))
-    lines.append("saving = rule-of-thumb baseline cost minus the strategy's cost; survives = member losses survived")
+    lines.append(
+        "kept = members in place, kept by every strategy; added = members the strategy adds; "
+        "saving = rule-of-thumb baseline cost minus the strategy's cost (dearer: the strategy costs more); "
+        "survives = member losses survived"
+    )
     if any(s.forces is not None for fc in comparison.frames for s in fc.strategies):
         lines.append(
             "max util / max drift: the layout under the frame's load cases (! = a member over capacity or a base "
