@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from hypothesis import strategies as st
 
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
+from bracegrid.model import CostCatalogue, CostRate, Diagonal, Frame, Member, MemberKind, Project, Supports
 
 #: What one diagonal of a bay holds: nothing, a brace or a tie.
 _CHOICES = (None, MemberKind.BRACE, MemberKind.TIE)
@@ -81,3 +83,26 @@ def near_minimal_layouts(draw: st.DrawFn, *, max_side: int = 12) -> Frame:
             taken.add((extra.row, extra.col, extra.diagonal))
             members.append(extra)
     return Frame("near-minimal", (2000,) * cols, (2000,) * rows, supports=sup, members=tuple(members))
+
+
+#: Money amounts as a user types them: up to three decimals (0.005 steps hit the half-cent case).
+_MONEY = st.decimals(min_value=0, max_value=60, places=3, allow_nan=False, allow_infinity=False).map(float)
+
+
+@st.composite
+def cost_catalogues(draw: st.DrawFn) -> CostCatalogue:
+    """Random prices per piece, per metre and for labour, and a contingency of 0-25 % in 0.5 % steps."""
+    brace = CostRate(draw(_MONEY), draw(_MONEY), draw(_MONEY))
+    tie = CostRate(draw(_MONEY), draw(_MONEY), draw(_MONEY))
+    return CostCatalogue(brace=brace, tie=tie, contingency_pct=draw(st.integers(0, 50)) / 2)
+
+
+@st.composite
+def priced_projects(draw: st.DrawFn, *, max_frames: int = 3) -> Project:
+    """One to three random frames with random layouts (some members existing, some proposed) and prices."""
+    frames = []
+    for k in range(draw(st.integers(1, max_frames))):
+        f = draw(frames_with_layouts(max_rows=5, max_cols=5))
+        members = tuple(replace(m, existing=draw(st.booleans())) for m in f.members)
+        frames.append(replace(f, name=f"frame {k + 1}", members=members))
+    return Project("generated", tuple(frames), costs=draw(cost_catalogues()))

@@ -20,7 +20,8 @@ SRC = Path(bracegrid.__file__).resolve().parent
 
 #: The stages in data-flow order; a module may import only from its own stage or earlier ones.
 STAGES = (
-    "errors", "units", "_version", "model", "io", "analysis", "optimize", "compare", "outputs", "web", "cli",
+    "errors", "units", "_version", "model", "io", "analysis", "mechanics", "optimize", "compare", "outputs", "web",
+    "cli",
     "__main__",
 )  # fmt: skip
 
@@ -124,7 +125,7 @@ def test_public_api_keeps_every_name() -> None:
         assert hasattr(bracegrid, name), name
 
 
-@pytest.mark.parametrize("package", ["model", "io", "analysis", "optimize", "compare", "outputs", "web"])
+@pytest.mark.parametrize("package", ["model", "io", "analysis", "mechanics", "optimize", "compare", "outputs", "web"])
 def test_each_stage_declares_its_api(package: str) -> None:
     module = importlib.import_module(f"bracegrid.{package}")
     assert module.__all__, package

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -91,3 +92,13 @@ def test_module_entry_point_runs() -> None:
     )
     assert proc.returncode == 0
     assert "STABLE" in proc.stdout
+
+
+def test_check_table_names_both_numbers() -> None:
+    # Issue 10: the column "braces + ties/2" showed "11 / 9", which reads as a fraction.
+    code, out, _ = run("check", SHED)
+    assert code == 0
+    assert "weighted count" in out
+    assert "least needed" in out
+    assert "braces + ties/2" in out  # explained under the table
+    assert not re.search(r"\d+(\.\d+)? / \d+", out)

@@ -23,11 +23,12 @@ def test_draw_writes_dxf_and_bom(tmp_path: Path) -> None:
     code, out, err = _run("draw", str(ORCHARD), "--out", str(tmp_path), "--format", "dxf")
     assert code == EXIT_OK, err
     names = sorted(p.name for p in tmp_path.iterdir())
-    assert names == ["orchard-shed-bom.csv", "orchard-shed.dxf"]
+    assert names == ["orchard-shed-bom-totals.csv", "orchard-shed-bom.csv", "orchard-shed.dxf"]
     doc = ezdxf.readfile(tmp_path / "orchard-shed.dxf")
     assert len(doc.audit().errors) == 0  # reference reader: ezdxf's auditor
     rows = list(csv.DictReader(io.StringIO((tmp_path / "orchard-shed-bom.csv").read_text(encoding="utf-8"))))
-    assert sum(1 for r in rows if r["kind"] in {"brace", "tie"}) == 14  # members listed in the demo file
+    assert len(rows) == 14  # members listed in the demo file, one row each and nothing else
+    assert {r["kind"] for r in rows} <= {"brace", "tie"}
     assert "wrote" in out
     assert "Caution:" in out
 

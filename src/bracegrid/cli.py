@@ -1,7 +1,8 @@
 """Command-line shell over the library. The only module that prints.
 
-Exit codes: 0 success (stable), 1 not stable, 2 bad input, 3 proven
-infeasible, 4 solver limit reached with no layout, 70 internal error.
+Exit codes: 0 success (stable; for ``forces``: within capacity), 1 not stable (for
+``forces``: over capacity or a mechanism), 2 bad input, 3 proven infeasible, 4 solver limit
+reached with no layout, 70 internal error.
 """
 
 from __future__ import annotations
@@ -15,33 +16,53 @@ from datetime import date
 from pathlib import Path
 from typing import Any, TextIO, TypeVar
 
+from rich.console import Console
 from rich.progress import Progress
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, check_frame
-from bracegrid.compare import StrategyKey, compare_project
+from bracegrid.analysis import (
+    CAUTION,
+    AdditionAdvice,
+    RobustnessOptions,
+    check_frame,
+    project_robustness,
+    rank_additions,
+    remove_members,
+)
+from bracegrid.compare import COMPARE_SAMPLES, StrategyKey, StrategyRobustness, compare_project, compare_robustness
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
     MEMBER_REF_HELP,
+    OutputFile,
     check_out_folder,
     load_project,
     parse_member_refs,
     save_project,
     write_outputs,
 )
+from bracegrid.mechanics import FrameForces, analyse_frame
 from bracegrid.model import Frame, MemberKind, Project
 from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
+    PlotFormat,
     check_dict,
     compare_dict,
+    force_summary_lines,
+    forces_dict,
     optimize_dict,
     parse_formats,
     progress_line,
     render_check,
     render_compare,
     render_compare_outputs,
+    render_force_files,
+    render_forces,
     render_optimize,
     render_outputs,
+    render_robustness,
+    render_robustness_plot,
+    robustness_dict,
+    robustness_panels,
 )
 from bracegrid.web import (
     EditorPaths,
@@ -112,11 +133,23 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     target = _without_frame(project, args)
     taken = _flagged("--without", lambda: parse_member_refs(target, args.without)) if target is not None else ()
-    verdicts = [check_frame(f, without=taken if f is target else ()) for f in _frames(project, args.frame)]
+    chosen = _frames(project, args.frame)
+    verdicts = [check_frame(f, without=taken if f is target else ()) for f in chosen]
+    forces = {
+        f.name: analyse_frame(f, project.strength, members=remove_members(f, taken if f is target else ()))
+        for f in chosen
+        if f.loads
+    }
+    additions: dict[str, AdditionAdvice] = {
+        f.name: rank_additions(f, project.costs, members=remove_members(f, taken) if f is target else None)
+        for f, v in zip(chosen, verdicts, strict=True)
+        if not v.stable
+    }
     if args.json:
-        _emit(out, check_dict(verdicts))
+        _emit(out, check_dict(verdicts, forces=forces, additions=additions))
     else:
-        out.write(render_check(project.name, verdicts))
+        notes = force_summary_lines(list(forces.values()))
+        out.write(render_check(project.name, verdicts, notes=notes, additions=additions))
         if target is not None and not all(v.stable for v in verdicts):
             refs = " ".join(args.without)
             out.write(
@@ -148,6 +181,40 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
         out.write(f"wrote {path}\n")
     out.write(f"Caution: {CAUTION}\n")
     return EXIT_OK
+
+
+def _cmd_forces(args: argparse.Namespace, out: TextIO) -> int:
+    formats = _flagged("--format", lambda: parse_formats(args.format))
+    project = load_project(args.project)
+    frames = [f for f in _frames(project, args.frame) if f.loads]
+    if args.case is not None:
+        frames = [f for f in frames if any(c.name == args.case for c in f.loads)]
+    if not frames:
+        where = f"frame {args.frame!r}" if args.frame else "the project"
+        what = f"no load case named {args.case!r}" if args.case else "no load cases"
+        msg = (
+            f"{args.project}: {where} has {what}; add [[frame.load]] tables with name and horizontal "
+            "(see docs/project-file.md)"
+        )
+        raise InputError(msg)
+    folder = _flagged("--out", lambda: check_out_folder(Path(args.out))) if args.out else None
+    cases = [args.case] if args.case is not None else None
+    results: list[FrameForces] = [analyse_frame(f, project.strength, cases=cases) for f in frames]
+    written: tuple[Path, ...] = ()
+    if folder is not None:
+        _, files = render_force_files(
+            project, results, stem=Path(args.project).stem, formats=formats, when=date.today()
+        )
+        written = write_outputs(folder, files)
+    if args.json:
+        payload = forces_dict(results)
+        payload["files"] = [str(p) for p in written]
+        _emit(out, payload)
+    else:
+        out.write(render_forces(project.name, results))
+        for path in written:
+            out.write(f"wrote {path}\n")
+    return EXIT_OK if all(r.ok for r in results) else EXIT_UNSTABLE
 
 
 def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
@@ -224,14 +291,71 @@ def _solver_problems(args: argparse.Namespace) -> list[str]:
     return problems
 
 
-def _add_solver_options(p: argparse.ArgumentParser, *, per: str) -> None:
-    p.add_argument("--time-limit", type=float, default=60.0, metavar="S", help=f"seconds per {per} (default 60)")
+def _add_solver_options(p: argparse.ArgumentParser, *, per: str, whole: str) -> None:
+    p.add_argument(
+        "--time-limit", type=float, default=60.0, metavar="S",
+        help=f"bounds the solver's search: S seconds for each {per} (default 60); {whole}",
+    )  # fmt: skip
     p.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
     p.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
 
 
+def _progress() -> Progress:
+    """A progress bar on stderr, shown only when stderr is a terminal; it vanishes when done."""
+    console = Console(stderr=True)
+    return Progress(console=console, transient=True, disable=not console.is_terminal)
+
+
+def _robustness_problems(args: argparse.Namespace) -> list[str]:
+    problems = []
+    if args.max_lost < 1:
+        problems.append(f"--max-lost {args.max_lost}: give at least 1 member")
+    if args.samples < 1:
+        problems.append(f"--samples {args.samples}: give at least 1 Monte Carlo sample")
+    if args.workers < 1:
+        problems.append(f"--workers {args.workers}: give at least 1 process")
+    return problems
+
+
+def _cmd_robustness(args: argparse.Namespace, out: TextIO) -> int:
+    problems = _robustness_problems(args)
+    if problems:
+        raise InputError(problems)
+    project = load_project(args.project)
+    frames = _frames(project, args.frame)
+    source = Path(args.project)
+    folder = _flagged(
+        "--out",
+        lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-robustness")),
+    )
+    options = RobustnessOptions(max_lost=args.max_lost, samples=args.samples, seed=args.seed, workers=args.workers)
+    with _progress() as progress:
+        task = progress.add_task("robustness", total=None)
+
+        def step(frame_name: str, done: int, total: int) -> None:
+            progress.update(task, description=f"{frame_name}: sampling", completed=done, total=total)
+
+        results = project_robustness(project, frames=frames, options=options, on_progress=step)
+    panels = robustness_panels(results, title=f"{project.name}: members lost at random")
+    files = [
+        OutputFile(f"{source.stem}-robustness.{fmt.value}", render_robustness_plot(panels, fmt)) for fmt in PlotFormat
+    ]
+    written = write_outputs(folder, files)
+    if args.json:
+        payload = robustness_dict(results)
+        payload["files"] = [str(p) for p in written]
+        _emit(out, payload)
+    else:
+        out.write(render_robustness(project.name, results))
+        for path in written:
+            out.write(f"wrote {path}\n")
+    return EXIT_OK if all(r.stable for r in results) else EXIT_UNSTABLE
+
+
 def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     problems = _solver_problems(args)
+    if args.samples < 0:
+        problems.append(f"--samples {args.samples}: give 0 (no robustness curves) or more")
     if problems:
         raise InputError(problems)
     project = load_project(args.project)
@@ -242,8 +366,7 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     )
     options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
     total = len(frames) * len(StrategyKey)
-    show = not args.json and sys.stderr.isatty()
-    with Progress(transient=True, disable=not show) as progress:
+    with _progress() as progress:
         task = progress.add_task("comparing", total=total)
 
         def step(frame_name: str, key: StrategyKey) -> None:
@@ -251,7 +374,19 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
             progress.advance(task)
 
         comparison = compare_project(project, options=options, frames=frames, bare=args.bare, on_progress=step)
-    files = render_compare_outputs(comparison, stem=source.stem, when=date.today(), time_limit=args.time_limit)
+        curves: tuple[StrategyRobustness, ...] = ()
+        if args.samples:
+            robust = RobustnessOptions(samples=args.samples, seed=args.seed, rank_members=False)
+            progress.update(task, completed=0, total=total)
+
+            def curve_step(frame_name: str, key: StrategyKey) -> None:
+                progress.update(task, description=f"{frame_name}: {key.value} robustness")
+                progress.advance(task)
+
+            curves = compare_robustness(comparison, options=robust, on_progress=curve_step)
+    files = render_compare_outputs(
+        comparison, stem=source.stem, when=date.today(), time_limit=args.time_limit, robustness=curves
+    )
     written = write_outputs(folder, files)
     if args.json:
         payload = compare_dict(comparison)
@@ -348,7 +483,9 @@ def build_parser() -> argparse.ArgumentParser:
     )
     _add_common(opt)
     opt.add_argument("--allow", metavar="KINDS", help="member kinds to add, e.g. brace,tie (default: each frame's)")
-    _add_solver_options(opt, per="frame")
+    _add_solver_options(
+        opt, per="frame's solve", whole="the whole run may take up to S x the number of frames, plus a second or two"
+    )
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
     opt.add_argument(
         "--without", nargs="+", default=[], metavar="MEMBER",
@@ -362,6 +499,23 @@ def build_parser() -> argparse.ArgumentParser:
     )  # fmt: skip
     opt.set_defaults(handler=_cmd_optimize)
 
+    frc = sub.add_parser(
+        "forces",
+        help="member forces, reactions and sway under each load case (tension-only ties), utilisation",
+        description="Analyse every frame with load cases as a pin-jointed bar framework (direct stiffness, "
+        "ties in tension only): the force in every diagonal, standard and ledger, support reactions and uplift, "
+        "the sway of every line and each lift's drift, and each member's utilisation against its capacity. "
+        "Exit code 0 when everything is within capacity, 1 when something is over or a case finds a mechanism.",
+    )
+    _add_common(frc)
+    frc.add_argument("--case", metavar="NAME", help="only this load case (both senses if it reverses)")
+    frc.add_argument("--out", metavar="DIR", help="write the member-force CSV and the force sheets into this folder")
+    frc.add_argument(
+        "--format", default="dxf,png", metavar="LIST",
+        help="force sheet formats with --out, comma-separated: dxf, svg, png, pdf (default: dxf,png)",
+    )  # fmt: skip
+    frc.set_defaults(handler=_cmd_forces)
+
     cmp_ = sub.add_parser(
         "compare",
         help="cost braces-only, ties-only, mixed, mixed N-1 and a rule-of-thumb layout side by side",
@@ -369,10 +523,41 @@ def build_parser() -> argparse.ArgumentParser:
         "strategy and a self-contained report.html. Members in place are kept; proposed ones are dropped.",
     )
     _add_common(cmp_)
-    _add_solver_options(cmp_, per="frame and strategy")
+    _add_solver_options(
+        cmp_, per="strategy's solve of each frame",
+        whole="the whole run may take up to 5 x S x the number of frames, plus the drawing (seconds)",
+    )  # fmt: skip
     cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
+    cmp_.add_argument(
+        "--samples", type=int, default=COMPARE_SAMPLES, metavar="N",
+        help=f"Monte Carlo samples per robustness curve in the report (default {COMPARE_SAMPLES}; 0 leaves them out)",
+    )  # fmt: skip
     cmp_.set_defaults(handler=_cmd_compare)
+
+    rob = sub.add_parser(
+        "robustness",
+        help="probability of staying stable as members go missing at random; which members matter most",
+        description="For k = 1..K members lost at random (uniformly, or weighted by [robustness.loss_likelihood] "
+        "in the project file), the probability that each frame stays free of mechanisms, with 95% intervals "
+        "(exact where enumeration is cheap, Monte Carlo otherwise), the expected number of losses until the "
+        "first mechanism, and for a stable frame the members whose absence lowers the curve most. Writes the "
+        "plot as PNG and SVG.",
+    )
+    _add_common(rob)
+    rob.add_argument(
+        "--max-lost", type=int, default=10, metavar="K", help="largest number of members lost (default 10)"
+    )
+    rob.add_argument("--samples", type=int, default=20_000, metavar="N", help="Monte Carlo samples (default 20000)")
+    rob.add_argument(
+        "--seed", type=int, default=0, metavar="S", help="random seed; same seed, same numbers (default 0)"
+    )
+    rob.add_argument(
+        "--workers", type=int, default=2, metavar="N",
+        help="processes for large runs; the numbers do not depend on it (default 2)",
+    )  # fmt: skip
+    rob.add_argument("--out", metavar="DIR", help="folder for the plot files (default: <project>-robustness)")
+    rob.set_defaults(handler=_cmd_robustness)
 
     edit = sub.add_parser(
         "edit",

@@ -47,3 +47,7 @@ class SolverLimitError(BraceGridError, RuntimeError):
 
 class ExportError(BraceGridError, OSError):
     """A drawing, report or project file could not be written."""
+
+
+class NumericalError(BraceGridError, ArithmeticError):
+    """A numerical solve could not meet its own accuracy check, so no numbers are reported."""

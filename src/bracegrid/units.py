@@ -111,6 +111,44 @@ def diagonal_mm(width_mm: int, height_mm: int) -> float:
     return math.hypot(width_mm, height_mm)
 
 
+def cut_length_mm(width_mm: int, height_mm: int) -> int:
+    """Cut length of a bay diagonal: its node-to-node length to the nearest whole millimetre.
+
+    Exact integer arithmetic (``math.isqrt``): ``w**2 + h**2`` is a whole number, so its root
+    is either whole or irrational and never ends in exactly .5; no tie-breaking rule is needed.
+
+    Example:
+        >>> cut_length_mm(3000, 4000), cut_length_mm(1300, 2000), cut_length_mm(2500, 2000)
+        (5000, 2385, 3202)
+    """
+    square = width_mm * width_mm + height_mm * height_mm
+    floor = math.isqrt(square)
+    return floor + (1 if square > floor * floor + floor else 0)
+
+
+def metres(length_mm: float) -> float:
+    """Millimetres to metres, rounded to the millimetre (three decimals) for JSON and CSV.
+
+    Example:
+        >>> metres(82238)
+        82.238
+    """
+    return round(length_mm / 1000.0, 3)
+
+
+def metres_text(length_mm: int) -> str:
+    """Whole millimetres as metres to the millimetre (three decimals, no unit), exact from the integer.
+
+    Bill lengths print this way, so printed rows add up to printed totals.
+
+    Example:
+        >>> metres_text(38160), metres_text(5)
+        ('38.160', '0.005')
+    """
+    whole, part = divmod(int(length_mm), 1000)
+    return f"{whole}.{part:03d}"
+
+
 def format_length_m(length_mm: float, *, decimals: int = 2) -> str:
     """Format a millimetre length as metres for reports.
 

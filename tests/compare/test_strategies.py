@@ -131,7 +131,8 @@ def test_cli_writes_csv_dxf_per_strategy_and_self_contained_html(tmp_path: Path)
     page = (folder / "report.html").read_text(encoding="utf-8")
     parser = _Collect()
     parser.feed(page)
-    assert parser.tags.count("svg") == 5  # one inline drawing per strategy
+    # one figure (frame drawing and legend) per strategy, one robustness plot
+    assert parser.tags.count("figure") == 5 + 1
     assert "table" in parser.tags
     assert parser.external == []  # no network fetches: nothing loaded from elsewhere
     assert "licensed engineer" in page
@@ -180,3 +181,105 @@ def test_totals_over_every_frame() -> None:
         assert comparison.total(key) == pytest.approx(sum(fc.result(key).cost for fc in comparison.frames))
     # Pinned base, rows decouple: ties-only can never beat mixed.
     assert comparison.total(StrategyKey.MIXED) <= comparison.total(StrategyKey.TIES_ONLY)
+
+
+KEPT_PROJECT = (
+    project_head("Kept yard", brace=(10.0, 0.0), tie=(7.0, 0.0))
+    + """
+[[frame]]
+name = "yard plan"
+widths = [3.0, 3.0, 3.0, 3.0]
+heights = [2.5, 2.5, 2.5]
+supports = "free"
+
+[[frame.member]]
+row = 2
+col = 2
+kind = "tie"
+diagonal = "rising"
+"""
+)
+
+
+def test_kept_and_added_members_apart_and_wording(tmp_path: Path) -> None:
+    # Issue 10: a braces-only row showed ties (members in place are kept); kept and added members
+    # are now separate columns. The status column says as drawn / repaired, not "rule of thumb";
+    # a negative saving is marked; "Rule of thumb (as drawn, repaired)" no longer sits beside
+    # "stable without repair".
+    project = tmp_path / "kept.toml"
+    project.write_text(KEPT_PROJECT, encoding="utf-8")
+    out = io.StringIO()
+    assert main(["compare", str(project), "--time-limit", "20", "--workers", "1", "--out", str(tmp_path / "o"),
+                 "--json"], out=out) == 0  # fmt: skip
+    (frame,) = json.loads(out.getvalue())["frames"]
+    rows = {s["key"]: s for s in frame["strategies"]}
+    braces_only = rows["braces-only"]
+    assert (braces_only["kept_ties"], braces_only["added_ties"]) == (1, 0)
+    assert braces_only["added_braces"] == braces_only["braces"]
+    for s in rows.values():
+        assert s["braces"] == s["kept_braces"] + s["added_braces"]
+        assert s["ties"] == s["kept_ties"] + s["added_ties"]
+    assert rows["baseline"]["status"] in {"as drawn", "repaired"}
+    page = (tmp_path / "o" / "report.html").read_text(encoding="utf-8")
+    assert "Rule of thumb (as drawn, repaired)" not in page
+    assert "<th>kept ties</th>" in page
+    assert "<th>added braces</th>" in page
+    text = io.StringIO()
+    assert main(["compare", str(project), "--time-limit", "20", "--workers", "1", "--out", str(tmp_path / "t")],
+                out=text) == 0  # fmt: skip
+    table = text.getvalue()
+    assert "kept" in table
+    assert "added" in table
+    assert "rule of thumb" not in table.split("All frames")[0].split("kept =")[0]
+    if any(s["saving"] is not None and s["saving"] < 0 for s in rows.values()):
+        assert "(dearer)" in table
+        assert "(dearer)" in page
+
+
+def test_negative_saving_is_marked() -> None:
+    from bracegrid.outputs.terms import saving_text
+
+    assert saving_text(-1230) == "-12.30 (dearer)"
+    assert saving_text(1230) == "12.30"
+
+
+def test_report_is_small_real_text_and_each_bill_once(tmp_path: Path) -> None:
+    # Issue 10: report.html was about 10 MB, drew every letter as a path, shrank the A3 sheet to the
+    # page and showed the bill twice. Now: a figure per strategy drawn for the page (frame and legend),
+    # text as text, the bill once as an HTML table, and the costs in the JSON equal to the bills.
+    from bracegrid.compare import compare_project
+    from bracegrid.io import load_project
+    from bracegrid.outputs import render_html
+    from bracegrid.outputs.bill import build_bom
+
+    demo = load_project(Path(__file__).resolve().parents[2] / "projects" / "quayside-scaffold.toml")
+    comparison = compare_project(demo, options=OPTIONS)
+    page = render_html(comparison)
+    assert len(page.encode("utf-8")) < 500_000
+    parser = _Collect()
+    parser.feed(page)
+    forces = page.count("<h4>Member forces</h4>")  # the demo has load cases: a force figure per layout
+    assert parser.tags.count("figure") == 10 + forces  # two frames x five strategies
+    assert page.count("<h4>Bill of materials</h4>") == 10
+    assert "BILL OF MATERIALS" not in page  # the sheet's table is not drawn into the figures
+    assert parser.tags.count("path") < 2000  # lines and symbols only, no glyph outlines
+    assert page.count(">street face: Ties only</title>") == 1
+    assert 'ul class="legend"' in page
+    for fc in comparison.frames:
+        for s in fc.strategies:
+            assert s.frame is not None
+            bom = build_bom(demo, frames=[s.frame])
+            assert round((s.cost or 0) * 100) == bom.totals.cost_cents
+            assert s.length_mm == bom.totals.length_mm
+
+
+def test_help_says_what_the_time_limit_bounds() -> None:
+    # Issue 10: say in --help what --time-limit bounds (each strategy's solve) and what the run may take.
+    out = io.StringIO()
+    import contextlib
+
+    with contextlib.redirect_stdout(out):
+        assert main(["compare", "--help"]) == 0
+    text = " ".join(out.getvalue().split())
+    assert "each strategy's solve of each frame" in text
+    assert "the whole run may take up to 5 x S x the number of frames" in text

@@ -67,12 +67,14 @@ def test_layout_cost_sums_members_in_their_own_bays() -> None:
     assert layout_cost(f, CostCatalogue(), []) == 0.0
 
 
-def test_layout_cost_rounds_the_sum_not_each_member() -> None:
-    # Three braces on 1 m x 1 m bays: each 25 + 8 x 1.41421356 = 36.3137085.
-    # Sum 108.9411255 -> 108.94; rounding each first would give 3 x 36.31 = 108.93.
+def test_layout_cost_is_the_sum_of_member_prices_to_the_cent() -> None:
+    # The bill's one rounding rule (issue 10: every total equals the sum of the printed rows).
+    # Three braces on 1 m x 1 m bays: cut hypot(1000, 1000) = 1414.2 -> 1414 mm; each
+    # 25 + 8 x 1.414 = 36.312 -> 36.31; the layout 3 x 36.31 = 108.93 (summing exact prices
+    # and rounding once would print 108.94 under rows that add up to 108.93).
     f = Frame("f", (1000,) * 3, (1000,))
     members = [Member(1, j, B, R) for j in (1, 2, 3)]
-    assert layout_cost(f, CostCatalogue(), members) == 108.94
+    assert layout_cost(f, CostCatalogue(), members) == 108.93
 
 
 def test_layout_cost_ignores_status_and_applies_the_catalogue() -> None:

@@ -26,10 +26,11 @@ BOTH = frozenset(MemberKind)
 def test_cost_units() -> None:
     assert SCALE == 10_000
     # Hand: brace on a 5 m diagonal = 65.00 -> 650000 units; tie = 24.00 -> 240000.
-    assert cost_units(CostCatalogue(), B, 5000.0) == 650_000
-    assert cost_units(CostCatalogue(), T, 5000.0) == 240_000
-    # Hand: tie on a 1 m x 1 m bay = 9 + 3 x 1.41421356 = 13.24264069 -> 132426.4069 -> 132426.
-    assert cost_units(CostCatalogue(), T, 1000 * 2**0.5) == 132_426
+    assert cost_units(CostCatalogue(), B, 5000) == 650_000
+    assert cost_units(CostCatalogue(), T, 5000) == 240_000
+    # Hand: tie on a 1 m x 1 m bay, cut 1414 mm = 9 + 3 x 1.414 = 13.242 -> 13.24 (the bill's
+    # price to the cent) -> 132400 units.
+    assert cost_units(CostCatalogue(), T, 1414) == 132_400
 
 
 def test_money() -> None:
@@ -41,10 +42,10 @@ def test_money() -> None:
 
 def test_bay_table_costs() -> None:
     t = bay_table(Frame("f", (3000, 4000), (4000,)), CostCatalogue(), (), BOTH)
-    # Hand: bay (1, 1) 3 x 4 m -> 5 m diagonal; bay (1, 2) 4 x 4 m -> 5.65685425 m.
-    # Brace: 65.0 and 25 + 8 x 5.65685425 = 70.2548340 -> 702548. Tie: 24.0 and 9 + 3 x 5.65685425 = 25.9705627.
-    assert t.brace_cost.tolist() == [[650_000, 702_548]]
-    assert t.tie_cost.tolist() == [[240_000, 259_706]]
+    # Hand: bay (1, 1) 3 x 4 m -> 5 m diagonal; bay (1, 2) 4 x 4 m -> 5.65685 m, cut 5657 mm.
+    # Brace: 65.00 and 25 + 8 x 5.657 = 70.256 -> 70.26. Tie: 24.00 and 9 + 3 x 5.657 = 25.971 -> 25.97.
+    assert t.brace_cost.tolist() == [[650_000, 702_600]]
+    assert t.tie_cost.tolist() == [[240_000, 259_700]]
     assert (t.rows, t.cols) == (1, 2)
     assert t.existing_cost == 0
     assert t.free_slots.tolist() == [[2, 2]]

@@ -28,7 +28,15 @@ from bracegrid.model import (
     Supports,
     blocked_bays,
 )
-from bracegrid.optimize import ProgressEvent, SolveMethod, SolveOptions, SolveStatus, optimize_frame, optimize_project
+from bracegrid.optimize import (
+    ProgressEvent,
+    SolveMethod,
+    SolveOptions,
+    SolveStatus,
+    method_words,
+    optimize_frame,
+    optimize_project,
+)
 from tests.physics import physically_rigid
 
 OPTS = SolveOptions(time_limit=20, workers=1, seed=0)
@@ -169,7 +177,7 @@ def greedy_baseline(frame: Frame, costs: CostCatalogue) -> float | None:
     layout = list(frame.members)
     taken = {(m.row, m.col, m.diagonal) for m in layout}
     options = sorted(
-        (costs.member_cost(k, frame.diagonal_length_mm(i, j)), i, j, d.value, k.value)
+        (costs.member_price_cents(k, frame.cut_length_mm(i, j)) / 100, i, j, d.value, k.value)
         for i in range(1, frame.rows + 1)
         for j in range(1, frame.cols + 1)
         for d in Diagonal
@@ -233,8 +241,9 @@ def test_cost_never_above_greedy_baseline(case: tuple[Frame, CostCatalogue]) -> 
 
 def test_reported_cost_matches_bill_of_materials_to_the_cent() -> None:
     # Regression: 48 ties priced 60.8140591 each summed to 2919.07, while per-member rounding
-    # to 1/10000 units gave 2919.08 in the optimizer's report. Both now use exact prices.
-    # By hand: tie = 22 + 10 + 4.5 x hypot(5, 4) = 60.814059; x 48 (4 max(12, 8), N-1) = 2919.07.
+    # to 1/10000 units gave 2919.08 in the optimizer's report. Both now follow the bill's one
+    # rounding rule. By hand: cut = hypot(5000, 4000) = 6403.12 -> 6403 mm; tie = 22 + 10 +
+    # 4.5 x 6.403 = 60.8135 -> 60.81 (half up); x 48 (4 max(12, 8), N-1) = 2918.88.
     from pathlib import Path
 
     from bracegrid.io import load_project
@@ -243,4 +252,35 @@ def test_reported_cost_matches_bill_of_materials_to_the_cent() -> None:
     project = load_project(Path(__file__).resolve().parents[2] / "projects" / "mill-lane-roof.toml")
     sol = optimize_project(project, options=SolveOptions(time_limit=30, workers=1, redundancy=1))
     bom = build_bom(dataclasses.replace(project, frames=tuple(f.frame for f in sol.frames)))
-    assert round(bom.totals.cost, 2) == sol.cost == 2919.07
+    assert bom.totals.cost == sol.cost == 2918.88
+
+
+@pytest.mark.parametrize("method", list(SolveMethod))
+@pytest.mark.parametrize("status", list(SolveStatus))
+def test_method_words_follow_the_status(method: SolveMethod, status: SolveStatus) -> None:
+    # Issue 10: "pattern layout, proven by the complete-frame closed-form bound" was printed next to
+    # FEASIBLE with a 3.23% gap. Only a proven status may claim a proof.
+    words = method_words(method, status, rounds=1, cuts=3, gap=0.0323)
+    if status is SolveStatus.OPTIMAL:
+        assert words.endswith("proven optimal")
+        assert "not proven" not in words
+    else:
+        assert "not proven optimal" in words
+        assert "3.23%" in words
+        assert "proven by" not in words
+        assert "proven optimal" not in words.replace("not proven optimal", "")
+    assert "1 rounds" not in words
+
+
+def test_tiny_time_limit_does_not_claim_a_proof() -> None:
+    # Issue 10 regression: a large free frame with a tiny limit ends FEASIBLE before any solver round;
+    # the method must say so rather than claim the closed-form bound proved it.
+    widths = tuple(2000 + 137 * (j % 7) for j in range(24))
+    heights = tuple(1800 + 91 * (i % 5) for i in range(24))
+    frame = Frame("big", widths, heights, blocked=frozenset({(5, 5), (9, 14)}))
+    sol = optimize_frame(frame, CostCatalogue(), options=SolveOptions(time_limit=0.01, workers=1, seed=0))
+    assert sol.status is SolveStatus.FEASIBLE
+    assert sol.gap > 0
+    assert "not proven optimal" in sol.method_text
+    assert "proven by" not in sol.method_text
+    assert sol.method is not SolveMethod.PATTERN_BOUND

@@ -92,7 +92,10 @@ def test_every_layer_defined_and_documented(case: tuple[DrawnSheet, Drawing]) ->
     used = {e.dxf.layer for e in doc.modelspace()}
     for layer in Layer:
         assert layer.layer_name in doc.layers
-        assert f"`{layer.layer_name}`" in docs
+        spec = layer.spec
+        # the docs' layer table row says what layers.py says: colour, linetype, weight, whose codes
+        row = f"| `{spec.name}` | {spec.description} | {spec.color} | {spec.linetype} | {spec.lineweight / 100:.2f} |"
+        assert f"{row} {spec.origin} |" in docs
     assert used <= {layer.layer_name for layer in Layer}
 
 

@@ -114,15 +114,15 @@ def test_every_strategy_of_the_closed_frame_is_infeasible(comparison: Comparison
 
 def test_one_comparison_row_per_strategy(comparison: Comparison, parsed: _Report) -> None:
     titles = [k.title for k in StrategyKey]
-    compare_tables = [t for t in parsed.tables if t and t[0][:3] == ["strategy", "status", "braces"]]
+    head = ["strategy", "status", "kept braces", "kept ties", "added braces", "added ties"]
+    compare_tables = [t for t in parsed.tables if t and t[0][:6] == head]
     assert len(compare_tables) == len(comparison.frames)
     for table, fc in zip(compare_tables, comparison.frames, strict=True):
         rows = [r for r in table[1:] if r and r[0] in titles]
         assert [r[0] for r in rows] == titles  # each strategy once, in order
         for row, s in zip(rows, fc.strategies, strict=True):
             assert row[1] == s.status.value
-            assert row[2] == str(s.braces)
-            assert row[3] == str(s.ties)
+            assert [int(v) for v in row[2:6]] == [s.kept_braces, s.kept_ties, s.added_braces, s.added_ties]
     # With two frames the totals table lists each strategy once too; no strategy works on every frame.
     totals = [t for t in parsed.tables if t and t[0][:2] == ["strategy", "cost, all frames"]]
     assert len(totals) == 1
@@ -142,9 +142,10 @@ def test_no_external_urls_and_no_scripts(page: str, parsed: _Report) -> None:
 
 
 def test_inline_drawings_have_unique_ids(comparison: Comparison, parsed: _Report) -> None:
-    # Every strategy of every frame draws one inline SVG; their ids are scoped so they never collide.
-    assert parsed.tags["svg"] == sum(1 for fc in comparison.frames for s in fc.strategies if s.frame is not None)
-    assert parsed.tags["svg"] == len(StrategyKey)  # the open frame's five layouts
+    # Every strategy of every frame draws one figure (its drawing and legend); the symbols are defined
+    # once per page, so no id repeats.
+    assert parsed.tags["figure"] == sum(1 for fc in comparison.frames for s in fc.strategies if s.frame is not None)
+    assert parsed.tags["figure"] == len(StrategyKey)  # the open frame's five layouts
     ids = [v for _, name, v in parsed.attrs if name == "id"]
     duplicates = [i for i, n in Counter(ids).items() if n > 1]
     assert duplicates == []

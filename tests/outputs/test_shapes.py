@@ -43,7 +43,8 @@ FRAME_SOLUTION_KEYS = {
 }  # fmt: skip
 STRATEGY_KEYS = {
     "key", "status", "cost", "saving", "stable", "braces", "ties", "diagonal_length_m", "critical_members",
-    "redundancy", "bound", "gap", "seconds", "note",
+    "redundancy", "bound", "gap", "seconds", "note", "max_utilisation", "max_drift", "within_capacity",
+    "kept_braces", "kept_ties", "added_braces", "added_ties",
 }  # fmt: skip
 
 CHAIN = (Member(1, 1, T, R), Member(1, 2, T, F), Member(2, 2, T, R))  # THEORY.md: floppy 2 x 2
@@ -129,15 +130,20 @@ def test_optimize_dict_keys(solution: ProjectSolution) -> None:
     assert out["cost"] == solution.cost
     assert [set(f) for f in out["frames"]] == [FRAME_SOLUTION_KEYS] * 2
     for f, s in zip(out["frames"], solution.frames, strict=True):
-        assert f == frame_solution_dict(s)
+        assert f == frame_solution_dict(s, solution.project.costs)
         assert f["stable"] is True
         assert f["status"] == "optimal"
         assert f["braces"] + f["ties"] == len(f["members"])
         assert f["new_braces"] + f["new_ties"] == sum(1 for m in f["members"] if not m["existing"])
         for m in f["members"]:
-            assert set(m) == MEMBER_KEYS | {"existing"}
+            assert set(m) == MEMBER_KEYS | {"existing", "cut_length_mm", "cost"}
+        # the bill's one rounding rule: the frame's cost is the sum of its members' prices, to the cent
+        assert round(f["cost"] * 100) == sum(round(m["cost"] * 100) for m in f["members"])
     wall = out["frames"][0]
-    assert wall["members"][0] == {"row": 1, "col": 1, "kind": "brace", "diagonal": "rising", "existing": True}
+    first = wall["members"][0]
+    assert {k: first[k] for k in MEMBER_KEYS | {"existing"}} == {
+        "row": 1, "col": 1, "kind": "brace", "diagonal": "rising", "existing": True,
+    }  # fmt: skip
     _only_python_scalars(out)
     json.dumps(out)
 
@@ -145,7 +151,7 @@ def test_optimize_dict_keys(solution: ProjectSolution) -> None:
 def test_solution_counts(solution: ProjectSolution) -> None:
     wall = solution.frames[0]
     counts = solution_counts(wall)
-    assert set(counts) == {"braces", "ties", "new_braces", "new_ties", "length_m"}
+    assert set(counts) == {"braces", "ties", "new_braces", "new_ties", "length_mm", "length_m"}
     # Every bay of "wall" is 3 x 4 m: a 5 m diagonal each (3-4-5).
     assert counts["length_m"] == 5.0 * len(wall.members)
 

@@ -26,10 +26,12 @@ from bracegrid.outputs.sheet import (
     Margins,
     SheetPlan,
     bill_size,
+    legend_rows,
     legend_size,
     plan_sheet,
     title_size,
 )
+from bracegrid.outputs.symbols import text_width
 
 EPS = 1e-6
 NONE = Margins(0.0, 0.0, 0.0, 0.0)
@@ -201,10 +203,13 @@ def test_random_plans_are_the_first_fit(seed: int) -> None:
 
 
 def test_legend_and_title_sizes() -> None:
-    # Hand: legend 96 mm wide; 9 + 11 rows x 4.2 + support 5.2 + bubble 7.2 = 67.6 mm high.
+    # Hand: 16 rows; 9 at 4.2 mm, the three marker rows (curls, diamond) 6.0, support and bay tag 5.6,
+    # the blocked-bay and opening samples 5.0, plus the 9 mm head: 9 + 37.8 + 18 + 11.2 + 10 = 86.0.
+    # Width: 3 + 16 (samples) + 3 + the longest line of words + 3.
     w, h = legend_size()
-    assert w == 96.0
-    assert h == pytest.approx(67.6)
+    assert h == pytest.approx(9 + 9 * 4.2 + 3 * 6.0 + 2 * 5.6 + 2 * 5.0)
+    longest = max(text_width(words, 2.0) for _, words, _ in legend_rows())
+    assert w == pytest.approx(25.0 + longest)
     assert title_size() == (120.0, 44.0)
 
 
@@ -220,7 +225,7 @@ def test_bill_size() -> None:
     one_group = Frame("a", (3000, 3000), (4000,), members=(Member(1, 1, b, r), Member(1, 2, b, f)))
     two_groups = Frame("b", (3000, 3000), (4000,), members=(Member(1, 1, b, r), Member(1, 2, t, f, existing=False)))
     empty = Frame("c", (3000,), (4000,))
-    width = 30 + 15 + 17 + 8 + 16 + 17 + 17  # the seven columns, hand sum = 120 mm
+    width = 30 + 13 + 19 + 9 + 21 + 18 + 19  # the seven columns, hand sum = 129 mm
     for frames, groups in (([one_group], 1), ([two_groups], 2), ([empty], 1)):  # an empty frame shows "none"
         size = bill_size(build_bom(Project("p", tuple(frames))))
         assert size[0] == width

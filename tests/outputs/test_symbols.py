@@ -18,19 +18,20 @@ import pytest
 from bracegrid.outputs.drawing import DXF_VERSION
 from bracegrid.outputs.layers import Layer, member_layer
 from bracegrid.outputs.symbols import (
-    BUBBLE_BLOCK,
+    BAY_TAG_BLOCK,
     CRITICAL_BLOCK,
     DIM_STYLE,
     SUPPORT_BLOCK,
     TEXT_FONT,
     TEXT_STYLE,
+    TICK_BLOCK,
     TIE_ACW_BLOCK,
     TIE_CW_BLOCK,
     setup_document,
     text_width,
 )
 
-BLOCKS = (SUPPORT_BLOCK, TIE_CW_BLOCK, TIE_ACW_BLOCK, CRITICAL_BLOCK, BUBBLE_BLOCK)
+BLOCKS = (SUPPORT_BLOCK, TIE_CW_BLOCK, TIE_ACW_BLOCK, CRITICAL_BLOCK, BAY_TAG_BLOCK, TICK_BLOCK)
 LINETYPES = ("BG_TIE", "BG_CHAIN", "BG_EDGE")
 SCALE = 50.0
 
@@ -73,7 +74,7 @@ def test_linetypes_are_scaled(doc: ezdxf.document.Drawing) -> None:
     assert (40, 210.0) in tags
     assert [v for c, v in tags if c == 49] == [150.0, -60.0]
     chain = [t.value for t in doc.linetypes.get("BG_CHAIN").pattern_tags.tags if t.code == 49]
-    assert chain == [400.0, -60.0, 50.0, -60.0]  # (8, -1.2, 1, -1.2) x 50
+    assert chain == [300.0, -60.0, 50.0, -60.0]  # (6, -1.2, 1, -1.2) x 50
 
 
 def test_text_and_dimension_styles(doc: ezdxf.document.Drawing) -> None:
@@ -96,7 +97,7 @@ def test_every_layer_is_defined_as_specified(doc: ezdxf.document.Drawing) -> Non
         assert entry.dxf.color == spec.color
         assert entry.dxf.linetype == spec.linetype
         assert entry.dxf.lineweight == spec.lineweight
-        assert entry.description == spec.description
+        assert entry.description == ""  # descriptions live in docs/drawings.md, not under another program's appid
         assert doc.linetypes.has_entry(spec.linetype), spec.linetype  # every layer's linetype exists
     assert member_layer(brace=True, existing=True) is Layer.BRACE_EXST
     assert member_layer(brace=True, existing=False) is Layer.BRACE_NEWW

@@ -13,7 +13,9 @@ linprog).
 
 from __future__ import annotations
 
+import math
 import random
+from fractions import Fraction
 
 import pytest
 
@@ -27,7 +29,20 @@ SIZES = [(1, 2), (1, 3), (2, 1), (2, 2), (2, 3), (3, 2), (1, 4), (3, 1)]
 
 
 def _units(costs: CostCatalogue, kind: MemberKind, frame: Frame, row: int, col: int) -> int:
-    return round(costs.member_cost(kind, frame.diagonal_length_mm(row, col)) * 10_000)
+    """The documented price rule, written out again with exact fractions (docs/drawings.md, "Bill of
+    materials"): cut length = diagonal to the nearest mm, price rounded half up to the cent."""
+    cut = round(math.hypot(frame.widths[col - 1], frame.heights[row - 1]))
+    rate = costs.rate(kind)
+    exact = (
+        (
+            Fraction(repr(rate.per_piece))
+            + Fraction(repr(rate.labour_per_piece))
+            + Fraction(repr(rate.per_metre)) * cut / 1000
+        )
+        * (100 + Fraction(repr(costs.contingency_pct)))
+        / 100
+    )
+    return math.floor(exact * 100 + Fraction(1, 2)) * 100
 
 
 def _strong(n: int, out: list[int], inn: list[int]) -> bool:

@@ -70,14 +70,16 @@ def test_project_endpoint_gives_frames_sizes_members_and_version(shed: Path) -> 
 
 
 def _hand_cost(project_file: Path, frame: dict[str, Any], members: list[dict[str, Any]]) -> float:
-    """Price of a layout summed by hand from the file's own tables: (piece + labour + metre x length)."""
+    """Price of a layout summed by hand from the file's own tables, by the bill's one rounding rule
+    (docs/drawings.md): each member (piece + labour + metre x cut length to the mm) to the cent, then summed."""
     costs = tomllib.loads(project_file.read_text(encoding="utf-8"))["costs"]
-    total = 0.0
+    total_cents = 0
     for m in members:
         rate = costs[m["kind"]]
-        length_m = math.hypot(frame["widths_mm"][m["col"] - 1], frame["heights_mm"][m["row"] - 1]) / 1000.0
-        total += rate["per_piece"] + rate.get("labour_per_piece", 0.0) + rate["per_metre"] * length_m
-    return total
+        cut_mm = round(math.hypot(frame["widths_mm"][m["col"] - 1], frame["heights_mm"][m["row"] - 1]))
+        price = rate["per_piece"] + rate.get("labour_per_piece", 0.0) + rate["per_metre"] * cut_mm / 1000.0
+        total_cents += math.floor(price * 100 + 0.5 + 1e-9)  # half up (no demo price sits on a half cent)
+    return total_cents / 100
 
 
 def test_check_agrees_with_bar_framework_physics_and_hand_cost(shed: Path) -> None:
@@ -100,7 +102,7 @@ def test_check_agrees_with_bar_framework_physics_and_hand_cost(shed: Path) -> No
             assert body["verdict"]["stable"] is physically_rigid(frame, layout)
             seen.add(body["verdict"]["stable"])
             assert body["summary"]["members"] == len(members)
-            assert body["summary"]["cost"] == pytest.approx(_hand_cost(shed, roof, members), abs=0.006)
+            assert body["summary"]["cost"] == pytest.approx(_hand_cost(shed, roof, members), abs=1e-9)
             assert body["server_ms"] >= 0
     assert seen == {True, False}  # both verdicts were exercised
 

@@ -11,7 +11,9 @@ Arc ``u -> v`` reads "racking of u <= racking of v". The arc rules (docs/theory.
 Other modules never write these rules out again: they call :func:`member_arrays` /
 :func:`build_arcs` for members, :func:`bay_arc_counts` / :func:`bay_arcs` for per-bay counts (the
 optimizer), :func:`strong_components` and :func:`flow_cuts` for the searches, and
-:func:`leaving_bays` for which bays cross a node set.
+:func:`leaving_bays` for which bays cross a node set, :func:`components_merged` for what one more
+member would lock, and the batched searches (:func:`batch_strongly_connected`,
+:func:`strong_bottleneck`) that the robustness statistics run on thousands of variants at once.
 
 References:
     E. D. Bolker and H. Crapo, "Bracing rectangular frameworks. I",
@@ -30,7 +32,7 @@ import networkx as nx
 import numpy as np
 import numpy.typing as npt
 from scipy.sparse import csr_matrix
-from scipy.sparse.csgraph import breadth_first_order, connected_components, maximum_flow
+from scipy.sparse.csgraph import breadth_first_order, connected_components, maximum_flow, shortest_path
 
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Supports
 
@@ -332,6 +334,58 @@ def arc_strong_components(arcs: ArcSet, keep: BoolArray | None = None) -> tuple[
     return strong_components(arcs.nodes, src, dst)
 
 
+def components_merged(frame: Frame, members: Sequence[Member], candidates: Sequence[Member]) -> IntArray:
+    """For each candidate member, by how many the strong components drop when it alone is added.
+
+    Adding arcs can only merge the strong components that the new arcs close a directed cycle
+    through. With the components' reachability R (in the condensation, a DAG, R reflexive) and a
+    candidate in the bay of row node u (component a) and column node w (component b):
+
+    * up arc only (a -> b): the merged part is (R(a) | R(b)) & R^-1(a);
+    * down arc only (b -> a): (R(a) | R(b)) & R^-1(b);
+    * both (a brace): (R(a) | R(b)) & (R^-1(a) | R^-1(b)).
+
+    The drop is the merged part's size less one. Cost: one all-pairs reachability of the
+    condensation (components x (components + arcs)), then a vectorised count per candidate.
+
+    Args:
+        frame: Gives the numbers of rows and columns and the supports.
+        members: The layout in place.
+        candidates: Members that might be added, each on its own.
+
+    Returns:
+        Shape (candidates,): components merged away (loose parts locked) by each.
+
+    Example:
+        >>> t = MemberKind.TIE
+        >>> chain = [Member(1, 1, t, Diagonal.RISING), Member(1, 2, t, Diagonal.FALLING),
+        ...          Member(2, 2, t, Diagonal.RISING)]
+        >>> f = Frame("2x2", (3000, 3000), (2000, 2000))
+        >>> components_merged(f, chain, [Member(2, 1, t, Diagonal.FALLING), Member(2, 1, t, Diagonal.RISING)]).tolist()
+        [3, 0]
+    """
+    arcs = build_arcs(frame, members)
+    count, labels = arc_strong_components(arcs)
+    if not candidates:
+        return np.zeros(0, dtype=np.int64)
+    cs, cd = labels[arcs.src], labels[arcs.dst]
+    between = cs != cd
+    reach = np.isfinite(shortest_path(csr(count, cs[between], cd[between]), unweighted=True, directed=True))
+    rows, cols, brace, rising = member_arrays(candidates)
+    a = labels[rows - 1]
+    b = labels[frame.rows + cols - 1]
+    up = brace | rising
+    down = brace | ~rising
+    out = np.zeros(len(candidates), dtype=np.int64)
+    step = max(1, (1 << 24) // max(1, count))
+    for lo in range(0, len(candidates), step):
+        sl = slice(lo, lo + step)
+        ahead = reach[a[sl]] | reach[b[sl]]
+        behind = (reach.T[a[sl]] & up[sl, None]) | (reach.T[b[sl]] & down[sl, None])
+        out[sl] = (ahead & behind).sum(axis=1) - 1
+    return out
+
+
 def reachable(graph: csr_matrix, start: int) -> IntArray:
     """Nodes reachable from ``start`` along arcs with positive entries (``start`` included)."""
     positive = graph.copy()
@@ -381,3 +435,191 @@ def flow_cuts(nodes: int, src: IntArray, dst: IntArray, capacity: IntArray) -> I
         for g, reverse in ((graph, False), (back, True)):
             result = maximum_flow(g, 0, v)
             yield FlowCut(int(result.flow_value), g, result.flow, reverse)
+
+
+# --------------------------------------------------------------------------- batched searches
+#
+# Many variants of one digraph at once (the same distinct arcs, each variant with its own arc
+# weights): the robustness engine asks "which variants are strongly connected?" for thousands
+# of random loss patterns. Work arrays are (arcs, variants), so that picking arcs copies whole
+# rows; callers batch the variants.
+
+FloatArray = npt.NDArray[np.float64]
+
+#: Largest bitset work array (nodes x words x variants) built at once, in 64-bit words (64 MiB).
+_BITSET_WORDS = 1 << 23
+
+
+def arc_members(arcs: ArcSet) -> IntArray:
+    """For each distinct arc, the indices of the members that give it, padded with -1.
+
+    Returns:
+        Shape (arcs, width), width the most members behind one arc (at least 1). A row of -1
+        only is an arc no member gives (a pinned base's ground arcs): it is never lost.
+
+    Example:
+        >>> f = Frame("f", (3000,), (2000,))
+        >>> b, t = MemberKind.BRACE, MemberKind.TIE
+        >>> arcs = build_arcs(f, [Member(1, 1, b, Diagonal.RISING), Member(1, 1, t, Diagonal.FALLING)])
+        >>> arc_members(arcs).tolist()  # arc row1->col1 from member 0; col1->row1 from members 0 and 1
+        [[0, -1], [0, 1]]
+    """
+    keys = arcs.member_keys
+    member = np.repeat(np.arange(len(keys), dtype=np.int64), 2)
+    flat = keys.ravel()
+    given = flat >= 0
+    arc = np.searchsorted(arcs.keys, flat[given])
+    member = member[given]
+    order = np.lexsort((member, arc))
+    arc, member = arc[order], member[order]
+    counts = np.bincount(arc, minlength=len(arcs.src))
+    starts = np.concatenate([[0], np.cumsum(counts)[:-1]])
+    slot = np.arange(len(arc), dtype=np.int64) - starts[arc]
+    table = np.full((len(arcs.src), max(1, int(counts.max(initial=0)))), -1, dtype=np.int64)
+    table[arc, slot] = member
+    return table
+
+
+def _grouped_max(values: FloatArray, groups: IntArray, nodes: int) -> FloatArray:
+    """Per node and variant, the largest value over the node's arcs; -inf for a node with none."""
+    order = np.argsort(groups, kind="stable")
+    heads, first = np.unique(groups[order], return_index=True)
+    out = np.full((nodes, values.shape[1]), -np.inf)
+    if len(heads):
+        out[heads] = np.maximum.reduceat(values[order], first, axis=0)
+    return out
+
+
+def node_cut_bound(arcs: ArcSet, weight: FloatArray) -> FloatArray:
+    """Per variant, an upper bound on :func:`strong_bottleneck`: the weakest single-node cut.
+
+    A node whose heaviest in-arc (or out-arc) has weight w is cut off from the rest as soon as
+    the threshold passes w, so no threshold above w leaves the digraph strongly connected.
+
+    Args:
+        arcs: The distinct arcs.
+        weight: Shape (arcs, variants).
+
+    Returns:
+        Shape (variants,).
+    """
+    into = _grouped_max(weight, arcs.dst, arcs.nodes).min(axis=0)
+    out_of = _grouped_max(weight, arcs.src, arcs.nodes).min(axis=0)
+    bound: FloatArray = np.minimum(into, out_of)
+    return bound
+
+
+def _bitset_reach(tails: IntArray, heads: IntArray, present: BoolArray, nodes: int) -> npt.NDArray[np.uint64]:
+    """Per variant, the nodes reachable from node 0 along present arcs: bitsets, shape (words, variants)."""
+    words = (nodes + 63) // 64
+    count = present.shape[1]
+    adjacency = np.zeros((nodes, words, count), dtype=np.uint64)
+    bit = np.left_shift(np.uint64(1), (heads % 64).astype(np.uint64))
+    for w in range(words):
+        in_word = np.flatnonzero(heads // 64 == w)
+        if not len(in_word):
+            continue
+        picked = in_word[np.argsort(tails[in_word], kind="stable")]
+        groups, first = np.unique(tails[picked], return_index=True)
+        bits = np.where(present[picked], bit[picked][:, None], np.uint64(0))
+        adjacency[groups, w] = np.bitwise_or.reduceat(bits, first, axis=0)
+    reach = np.zeros((words, count), dtype=np.uint64)
+    reach[0] = 1
+    one = np.uint64(1)
+    while True:
+        grown = reach.copy()
+        for v in range(nodes):
+            has = (reach[v // 64] >> np.uint64(v % 64)) & one
+            grown |= adjacency[v] & (np.uint64(0) - has)
+        if np.array_equal(grown, reach):
+            return reach
+        reach = grown
+
+
+def batch_strongly_connected(arcs: ArcSet, present: BoolArray) -> BoolArray:
+    """Which variants of the digraph are strongly connected.
+
+    Node 0 must reach every node and every node must reach node 0; both reaches are grown as
+    bitsets (64 nodes to a word), one sweep over the nodes per step, for every variant at once.
+    Steps: at most the longest shortest path from or to node 0, plus one.
+
+    Args:
+        arcs: The distinct arcs.
+        present: Shape (arcs, variants): which arcs each variant keeps.
+
+    Returns:
+        Shape (variants,).
+
+    Example:
+        >>> f = Frame("f", (3000,), (2000,))
+        >>> arcs = build_arcs(f, [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
+        >>> batch_strongly_connected(arcs, np.array([[True, True], [True, False]])).tolist()
+        [True, False]
+    """
+    nodes = arcs.nodes
+    words = (nodes + 63) // 64
+    full = np.array([(1 << min(64, nodes - 64 * w)) - 1 for w in range(words)], dtype=np.uint64)[:, None]
+    out = np.zeros(present.shape[1], dtype=bool)
+    step = max(1, _BITSET_WORDS // (nodes * words))
+    for lo in range(0, present.shape[1], step):
+        part = present[:, lo : lo + step]
+        forward = _bitset_reach(arcs.src, arcs.dst, part, nodes)
+        backward = _bitset_reach(arcs.dst, arcs.src, part, nodes)
+        out[lo : lo + step] = ((forward == full) & (backward == full)).all(axis=0)
+    return out
+
+
+def _maximin_from_root(tails: IntArray, heads: IntArray, weight: FloatArray, nodes: int) -> FloatArray:
+    """Per variant, over nodes v, the smallest widest-path value from node 0 to v (Bellman-Ford)."""
+    order = np.argsort(heads, kind="stable")
+    t, w = tails[order], weight[order]
+    targets, first = np.unique(heads[order], return_index=True)
+    best = np.full((nodes, weight.shape[1]), -np.inf)
+    best[0] = np.inf
+    for _ in range(nodes):
+        reached = np.maximum.reduceat(np.minimum(best[t], w), first, axis=0)
+        grown = np.maximum(best[targets], reached)
+        if np.array_equal(grown, best[targets]):
+            break
+        best[targets] = grown
+        best[0] = np.inf
+    low: FloatArray = best.min(axis=0)
+    return low
+
+
+def strong_bottleneck(arcs: ArcSet, weight: FloatArray) -> FloatArray:
+    """Per variant, the largest threshold t such that the arcs of weight >= t are strongly connected.
+
+    A digraph is strongly connected iff node 0 reaches every node and every node reaches node 0,
+    so the answer is the smaller of two widest-path (maximin) values: over nodes v, the least
+    widest path from node 0 to v, and from v to node 0. It is found in two passes: the weakest
+    single-node cut (:func:`node_cut_bound`) bounds it from above and is the answer whenever the
+    arcs at least that heavy are strongly connected (one :func:`batch_strongly_connected`), which
+    holds for most random variants; the others run Bellman-Ford on the maximin semiring
+    (at most ``nodes`` rounds). -inf when even every arc together is not strongly connected.
+
+    Args:
+        arcs: The distinct arcs.
+        weight: Shape (arcs, variants); inf for an arc that is never lost.
+
+    Returns:
+        Shape (variants,).
+
+    Example:
+        >>> t = MemberKind.TIE
+        >>> ties = [Member(1, 1, t, Diagonal.RISING), Member(1, 2, t, Diagonal.FALLING),
+        ...         Member(2, 2, t, Diagonal.RISING), Member(2, 1, t, Diagonal.FALLING)]
+        >>> arcs = build_arcs(Frame("f", (3000, 3000), (2000, 2000)), ties)
+        >>> strong_bottleneck(arcs, np.array([[0.4], [0.9], [0.2], [0.7]])).tolist()  # a 4-cycle: its weakest arc
+        [0.2]
+    """
+    bound = node_cut_bound(arcs, weight)
+    holds = batch_strongly_connected(arcs, weight >= bound[None, :])
+    out = bound.copy()
+    rest = np.flatnonzero(~holds)
+    if len(rest):
+        w = weight[:, rest]
+        forward = _maximin_from_root(arcs.src, arcs.dst, w, arcs.nodes)
+        backward = _maximin_from_root(arcs.dst, arcs.src, w, arcs.nodes)
+        out[rest] = np.minimum(forward, backward)
+    return out

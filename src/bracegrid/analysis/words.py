@@ -1,4 +1,4 @@
-"""Explanations in plain words: loose parts, their racking sense, redundancy, and the caution text.
+"""Explanations in plain words: loose parts, racking sense, redundancy, additions, robustness limits, the caution.
 
 Shared by every output (text, JSON, drawings, the HTML report) and by the optimizer's
 reasons for infeasible requests, so the same situation is always worded the same way.
@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
 
+from bracegrid.analysis.additions import Addition
 from bracegrid.analysis.verdict import LoosePart, Verdict
 from bracegrid.model import Racking, Supports
 
@@ -92,3 +93,23 @@ def redundancy_words(k: int) -> str:
     if k == 0:
         return "a single member loss can leave a mechanism"
     return "survives the loss of any one member" if k == 1 else f"survives the loss of any {k} members"
+
+
+#: What the robustness statistics assume, said next to their numbers (docs/robustness.md).
+ROBUSTNESS_LIMITS = (
+    "Stability only: first-order, pin-jointed, ties taut; no member strength, loads or sway. "
+    "Members go missing one at a time at random, independently of the loads and of each other "
+    "(uniformly, or weighted by each kind's loss likelihood); nobody replaces them."
+)
+
+
+def addition_words(addition: Addition) -> str:
+    """What one more member would lock, in words.
+
+    Example:
+        >>> from bracegrid.model import Diagonal, Member, MemberKind
+        >>> addition_words(Addition(Member(3, 5, MemberKind.TIE, Diagonal.RISING), 3, 21.5))
+        'tie r3c5:rising locks 3 loose parts (cost 21.50)'
+    """
+    parts = "1 loose part" if addition.parts_locked == 1 else f"{addition.parts_locked} loose parts"
+    return f"{addition.member.kind.value} {addition.member.label} locks {parts} (cost {addition.cost:.2f})"

@@ -31,7 +31,18 @@ from enum import Enum
 from bracegrid.analysis import Verdict, check_layout, redundancy_of
 from bracegrid.compare.baseline import rule_of_thumb_layout
 from bracegrid.errors import InfeasibleError
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, layout_cost
+from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
+from bracegrid.model import (
+    CostCatalogue,
+    Frame,
+    Member,
+    MemberKind,
+    Project,
+    StrengthCatalogue,
+    layout_cost,
+    layout_cost_cents,
+    layout_length_mm,
+)
 from bracegrid.optimize import FrameSolution, SolveOptions, SolveStatus, optimize_frame
 
 
@@ -57,8 +68,10 @@ class StrategyStatus(Enum):
     """Proven minimum cost for the strategy."""
     FEASIBLE = "feasible"
     """Stable, but the time limit came before a proof (see bound and gap)."""
-    RULE_OF_THUMB = "rule of thumb"
-    """The hand-drawn style layout (repaired where it left a mechanism)."""
+    AS_DRAWN = "as drawn"
+    """The rule-of-thumb layout, stable as the rule drew it."""
+    REPAIRED = "repaired"
+    """The rule-of-thumb layout left a mechanism; the cheapest repair was added (see the note)."""
     INFEASIBLE = "infeasible"
     """No layout exists under the strategy (see the note)."""
 
@@ -73,7 +86,7 @@ _TITLES = {
     StrategyKey.TIES_ONLY: "Ties only",
     StrategyKey.MIXED: "Mixed (optimized)",
     StrategyKey.MIXED_REDUNDANT: "Mixed, survives loss of any one member",
-    StrategyKey.BASELINE: "Rule of thumb (as drawn, repaired)",
+    StrategyKey.BASELINE: "Rule of thumb",
 }
 
 _BOTH = frozenset(MemberKind)
@@ -86,18 +99,22 @@ class StrategyResult:
     Attributes:
         key: Which strategy.
         frame: The frame carrying the strategy's full layout (None if infeasible).
-        status: Optimal, feasible (time limit, see gap), rule of thumb or infeasible.
+        status: Optimal, feasible (time limit, see gap), as drawn or repaired (the baseline), or infeasible.
         cost: Whole-layout cost (money), None if infeasible.
         bound: Proven lower bound on the cost, None where not applicable.
         gap: Relative gap to the bound, None where not applicable.
         seconds: Solve time.
-        braces: Rigid braces in the layout.
-        ties: Ties in the layout.
-        length_mm: Total diagonal length.
+        braces: Rigid braces in the layout (kept and added).
+        ties: Ties in the layout (kept and added).
+        length_mm: Total cut length of the layout's members, whole mm (the bill's lengths).
         stable: Re-verified by the stability check.
         critical: Members whose single loss leaves a mechanism.
         redundancy: Members the layout can lose, any of them, and stay stable (-1: unstable).
         note: Why infeasible, or what the repair added.
+        kept_braces: Braces already in place, kept by every strategy.
+        kept_ties: Ties already in place, kept by every strategy.
+        forces: The layout's member forces under the frame's load cases (None without loads, or
+            when the project lacks a stiffness the layout needs).
     """
 
     key: StrategyKey
@@ -109,11 +126,24 @@ class StrategyResult:
     seconds: float
     braces: int
     ties: int
-    length_mm: float
+    length_mm: int
     stable: bool
     critical: int
     redundancy: int
     note: str = ""
+    kept_braces: int = 0
+    kept_ties: int = 0
+    forces: FrameForces | None = None
+
+    @property
+    def added_braces(self) -> int:
+        """Braces the strategy adds."""
+        return self.braces - self.kept_braces
+
+    @property
+    def added_ties(self) -> int:
+        """Ties the strategy adds."""
+        return self.ties - self.kept_ties
 
 
 @dataclass(frozen=True, slots=True)
@@ -135,7 +165,7 @@ class FrameComparison:
     def saving(self, key: StrategyKey) -> float | None:
         """Money saved by a strategy against the baseline (None if either is infeasible)."""
         base, got = self.result(StrategyKey.BASELINE).cost, self.result(key).cost
-        return None if base is None or got is None else round(base - got, 2)
+        return None if base is None or got is None else (round(base * 100) - round(got * 100)) / 100
 
 
 @dataclass(frozen=True, slots=True)
@@ -172,6 +202,7 @@ def _summary(
     note: str = "",
 ) -> StrategyResult:
     braces = sum(1 for m in members if m.kind is MemberKind.BRACE)
+    kept_braces = sum(1 for m in frame.members if m.kind is MemberKind.BRACE)
     return StrategyResult(
         key=key,
         frame=dataclasses.replace(frame, members=members),
@@ -182,11 +213,13 @@ def _summary(
         seconds=round(seconds, 3),
         braces=braces,
         ties=len(members) - braces,
-        length_mm=round(sum(frame.diagonal_length_mm(m.row, m.col) for m in members), 1),
+        length_mm=layout_length_mm(frame, members),
         stable=verdict.stable,
         critical=len(verdict.critical_members),
         redundancy=redundancy,
         note=note,
+        kept_braces=kept_braces,
+        kept_ties=len(frame.members) - kept_braces,
     )
 
 
@@ -217,7 +250,7 @@ def _from_solution(
 def _infeasible(key: StrategyKey, seconds: float, reason: str) -> StrategyResult:
     return StrategyResult(
         key=key, frame=None, status=StrategyStatus.INFEASIBLE, cost=None, bound=None, gap=None,
-        seconds=round(seconds, 3), braces=0, ties=0, length_mm=0.0, stable=False, critical=0, redundancy=-1,
+        seconds=round(seconds, 3), braces=0, ties=0, length_mm=0, stable=False, critical=0, redundancy=-1,
         note=reason,
     )  # fmt: skip
 
@@ -244,9 +277,10 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
     if verdict.stable:
         note = f"as drawn: {added} members added by the rule, stable without repair"
         return _summary(StrategyKey.BASELINE, frame, costs, drawn, verdict=verdict,
-                        redundancy=redundancy_of(frame, drawn), status=StrategyStatus.RULE_OF_THUMB,
+                        redundancy=redundancy_of(frame, drawn), status=StrategyStatus.AS_DRAWN,
                         seconds=time.perf_counter() - t0, note=note)  # fmt: skip
-    as_drawn = layout_cost(frame, costs, drawn)
+    as_drawn_cents = layout_cost_cents(frame, costs, drawn)
+    as_drawn = as_drawn_cents / 100
     try:
         sol = optimize_frame(
             dataclasses.replace(frame, members=drawn),
@@ -256,12 +290,21 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
     except InfeasibleError as exc:
         return _infeasible(StrategyKey.BASELINE, time.perf_counter() - t0, "; ".join(exc.reasons))
     repair = len(sol.members) - len(drawn)
+    repair_cents = layout_cost_cents(frame, costs, sol.members) - as_drawn_cents
     note = (
         f"as drawn: {added} members by the rule, costing {as_drawn:.2f}, left a mechanism; "
-        f"repair added {repair} members costing {sol.cost - as_drawn:.2f}"
+        f"repair added {repair} members costing {repair_cents / 100:.2f}"
     )
-    return _from_solution(StrategyKey.BASELINE, frame, costs, sol, status=StrategyStatus.RULE_OF_THUMB,
+    return _from_solution(StrategyKey.BASELINE, frame, costs, sol, status=StrategyStatus.REPAIRED,
                           seconds=time.perf_counter() - t0, note=note)  # fmt: skip
+
+
+def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> StrategyResult:
+    """The result with its layout's member forces, where the frame has loads and the stiffness is given."""
+    layout = result.frame
+    if strength is None or layout is None or not layout.loads or missing_stiffness(layout, strength, layout.members):
+        return result
+    return dataclasses.replace(result, forces=analyse_frame(layout, strength))
 
 
 def compare_frame(
@@ -271,6 +314,7 @@ def compare_frame(
     options: SolveOptions | None = None,
     bare: bool = False,
     on_progress: Callable[[str, StrategyKey], None] | None = None,
+    strength: StrengthCatalogue | None = None,
 ) -> FrameComparison:
     """Solve one frame under every strategy.
 
@@ -281,6 +325,8 @@ def compare_frame(
         options: Solver options (default :class:`SolveOptions`); the time limit applies to each strategy.
         bare: Drop every member and start each strategy from the bare frame.
         on_progress: Called with (frame name, strategy) as each strategy starts.
+        strength: Stiffness and capacities: with them, every layout of a frame with load cases gets
+            its member forces.
 
     Returns:
         The comparison, every layout re-verified.
@@ -295,7 +341,7 @@ def compare_frame(
             results.append(_baseline(frame, costs, options))
         else:
             results.append(_optimized(key, frame, costs, options))
-    return FrameComparison(frame=frame, strategies=tuple(results))
+    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength) for r in results))
 
 
 def compare_project(
@@ -311,6 +357,9 @@ def compare_project(
     return Comparison(
         project=project,
         frames=tuple(
-            compare_frame(f, project.costs, options=options, bare=bare, on_progress=on_progress) for f in chosen
+            compare_frame(
+                f, project.costs, options=options, bare=bare, on_progress=on_progress, strength=project.strength
+            )
+            for f in chosen
         ),
     )

@@ -20,7 +20,10 @@ from typing import Any, TypeVar
 from shapely.geometry import box
 from shapely.validation import explain_validity
 
+import bracegrid.io.loads as loads
 from bracegrid.errors import InputError
+from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
+from bracegrid.io.robustness import read_robustness
 from bracegrid.model import (
     CostCatalogue,
     CostRate,
@@ -38,11 +41,11 @@ from bracegrid.units import MM_PER_UNIT, parse_length
 
 _PROJECT_KEYS = {"name", "length_unit"}
 _COST_KEYS = {*(k.value for k in MemberKind), "contingency_pct"}
-_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"}
+_RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-}  # fmt: skip
+} | loads.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -460,7 +463,7 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
     """
     col = _Collector()
     lines = _Lines.scan(text)
-    col.unknown_keys("top level", data, {"project", "costs", "frame"})
+    col.unknown_keys("top level", data, {"project", "costs", "frame", ROBUSTNESS_TABLE} | loads.TOP_KEYS)
     head = col.table("[project]", data.get("project", {}))
     name = "untitled"
     unit = "m"
@@ -476,6 +479,8 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
         else:
             unit = raw_unit
     costs = _read_costs(col, data.get("costs"))
+    likelihood, robustness_problems = read_robustness(data.get(ROBUSTNESS_TABLE), text=text)
+    col.problems.extend(robustness_problems)
     raw_frames = data.get("frame")
     frames: list[Frame] = []
     if not isinstance(raw_frames, list) or not raw_frames:
@@ -484,13 +489,17 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
     for index, raw in enumerate(raw_frames):
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
-            frames.append(got)
+            frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
+    strength = loads.read_strength(col, data, frames)
     if col.problems or costs is None:
         raise InputError(col.problems or ["costs could not be read"], source=source)
-    return Project(name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source)
+    return Project(
+        name=name, frames=tuple(frames), costs=costs, length_unit=unit, source=source, strength=strength,
+        loss_likelihood=likelihood,
+    )  # fmt: skip
 
 
 def load_project(path: str | Path) -> Project:

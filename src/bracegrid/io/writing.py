@@ -8,6 +8,9 @@ from typing import Any
 import tomli_w
 
 from bracegrid.io.atomic import write_text_atomic
+from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
+from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
+from bracegrid.io.robustness import robustness_table
 from bracegrid.model import CostRate, Frame, MemberKind, Project
 from bracegrid.units import MM_PER_UNIT
 
@@ -54,6 +57,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
             }
             for m in sorted(frame.members, key=lambda m: m.sort_key)
         ]
+    out.update(frame_load_fields(frame))
     return out
 
 
@@ -66,13 +70,21 @@ def render_project(project: Project) -> str:
         >>> "widths = [\\n    3,\\n]" in text or "widths = [3]" in text
         True
     """
-    costs: dict[str, Any] = {k.value: _rate(project.costs.rate(k)) for k in MemberKind}
+    costs: dict[str, Any] = {
+        k.value: _rate(project.costs.rate(k)) | strength_fields(project.strength.of(k)) for k in MemberKind
+    }
     if project.costs.contingency_pct:
         costs["contingency_pct"] = project.costs.contingency_pct
     head: dict[str, Any] = {"name": project.name}
     if project.length_unit != "m":
         head["length_unit"] = project.length_unit
-    doc = {"project": head, "costs": costs, "frame": [_frame(f, project.length_unit) for f in project.frames]}
+    doc: dict[str, Any] = {"project": head, "costs": costs}
+    if grid := grid_table(project.strength):
+        doc["grid"] = grid
+    robustness = robustness_table(project.loss_likelihood)
+    if robustness is not None:
+        doc[ROBUSTNESS_TABLE] = robustness
+    doc["frame"] = [_frame(f, project.length_unit) for f in project.frames]
     return tomli_w.dumps(doc)
 
 

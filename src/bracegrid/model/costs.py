@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from decimal import ROUND_HALF_UP, Decimal
 
 from bracegrid.model.kinds import MemberKind
 
@@ -51,3 +52,31 @@ class CostCatalogue:
         r = self.rate(kind)
         base = r.per_piece + r.labour_per_piece + r.per_metre * length_mm / 1000.0
         return base * (1.0 + self.contingency_pct / 100.0)
+
+    def member_price_cents(self, kind: MemberKind, cut_length_mm: int) -> int:
+        """Price of one member of a whole-millimetre cut length, in whole cents.
+
+        The one rounding rule of every price bracegrid reports (docs/drawings.md, "Bill of
+        materials"): the price is worked out exactly in decimal from the rates as written
+        (``repr`` of each number) and the cut length, then rounded half up to the cent once.
+        Every subtotal and total is a sum of these whole cents, so totals always equal the
+        sum of the rows printed.
+
+        Example:
+            >>> CostCatalogue().member_price_cents(MemberKind.BRACE, 5000)
+            6500
+            >>> CostCatalogue(contingency_pct=12.5).member_price_cents(MemberKind.TIE, 2385)
+            1817
+        """
+        r = self.rate(kind)
+        exact = (
+            (_dec(r.per_piece) + _dec(r.labour_per_piece) + _dec(r.per_metre) * Decimal(cut_length_mm) / 1000)
+            * (100 + _dec(self.contingency_pct))
+            / 100
+        )
+        return int((exact * 100).quantize(Decimal(1), rounding=ROUND_HALF_UP))
+
+
+def _dec(value: float) -> Decimal:
+    """A rate as the decimal number it was written as (``repr`` gives the shortest round-trip form)."""
+    return Decimal(repr(float(value)))

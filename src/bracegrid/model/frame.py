@@ -11,8 +11,10 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from bracegrid.model.costs import CostCatalogue
-from bracegrid.model.kinds import Diagonal, MemberKind, Supports
-from bracegrid.units import diagonal_mm
+from bracegrid.model.kinds import Diagonal, Edge, MemberKind, Supports
+from bracegrid.model.loads import LoadCase, StrengthCatalogue
+from bracegrid.model.losses import LossLikelihood
+from bracegrid.units import cut_length_mm, diagonal_mm
 
 
 @dataclass(frozen=True, slots=True)
@@ -80,6 +82,9 @@ class Frame:
         opening_overlap: A bay is blocked by an opening when the overlap area
             exceeds this fraction of the bay area (0 = any positive area).
         redundancy: Members whose loss the layout must survive (0 = none).
+        loads: Load cases for the member-force analysis (none: stability only).
+        held_edges: Edges a wall line under them holds along their own direction (plan grids,
+            ``supports`` free); they enter the force analysis only.
     """
 
     name: str
@@ -92,6 +97,8 @@ class Frame:
     members: tuple[Member, ...] = ()
     opening_overlap: float = 0.0
     redundancy: int = 0
+    loads: tuple[LoadCase, ...] = ()
+    held_edges: frozenset[Edge] = frozenset()
 
     @property
     def rows(self) -> int:
@@ -116,6 +123,10 @@ class Frame:
     def diagonal_length_mm(self, row: int, col: int) -> float:
         """Length of either diagonal of bay (row, col), 1-based."""
         return diagonal_mm(self.widths[col - 1], self.heights[row - 1])
+
+    def cut_length_mm(self, row: int, col: int) -> int:
+        """Cut length of either diagonal of bay (row, col): node to node, whole millimetres."""
+        return cut_length_mm(self.widths[col - 1], self.heights[row - 1])
 
     def x_lines(self) -> tuple[int, ...]:
         """x of the vertical grid lines 0..C in mm."""
@@ -142,6 +153,8 @@ class Project:
         costs: Prices.
         length_unit: Unit of bare numbers in the file (kept for writing back).
         source: The file it was read from, if any.
+        loss_likelihood: How likely each member kind is to go missing (robustness statistics).
+        strength: Capacities and stiffness of members, grid bars and base (force analysis).
     """
 
     name: str
@@ -149,6 +162,8 @@ class Project:
     costs: CostCatalogue = CostCatalogue()
     length_unit: str = "m"
     source: str = ""
+    loss_likelihood: LossLikelihood = LossLikelihood()
+    strength: StrengthCatalogue = StrengthCatalogue()
 
     def frame(self, name: str) -> Frame:
         """The frame with this name.
@@ -162,8 +177,20 @@ class Project:
         raise KeyError(name)
 
 
+def layout_cost_cents(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -> int:
+    """Price of every member of a layout in whole cents: the sum of each member's price to the cent.
+
+    Example:
+        >>> from bracegrid.model import Diagonal
+        >>> f = Frame("f", (3000,), (4000,))
+        >>> layout_cost_cents(f, CostCatalogue(), [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
+        6500
+    """
+    return sum(costs.member_price_cents(m.kind, frame.cut_length_mm(m.row, m.col)) for m in members)
+
+
 def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -> float:
-    """Price of every member of a layout, from the exact member prices, rounded to cents.
+    """Price of every member of a layout (money, two decimals): :func:`layout_cost_cents` / 100.
 
     Example:
         >>> from bracegrid.model import Diagonal
@@ -171,4 +198,15 @@ def layout_cost(frame: Frame, costs: CostCatalogue, members: Iterable[Member]) -
         >>> layout_cost(f, CostCatalogue(), [Member(1, 1, MemberKind.BRACE, Diagonal.RISING)])
         65.0
     """
-    return round(sum(costs.member_cost(m.kind, frame.diagonal_length_mm(m.row, m.col)) for m in members), 2)
+    return layout_cost_cents(frame, costs, members) / 100
+
+
+def layout_length_mm(frame: Frame, members: Iterable[Member]) -> int:
+    """Total cut length of a layout's members, whole millimetres (the sum of each member's cut length).
+
+    Example:
+        >>> from bracegrid.model import Diagonal
+        >>> layout_length_mm(Frame("f", (3000,), (4000,)), [Member(1, 1, MemberKind.TIE, Diagonal.RISING)])
+        5000
+    """
+    return sum(frame.cut_length_mm(m.row, m.col) for m in members)

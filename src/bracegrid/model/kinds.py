@@ -47,3 +47,33 @@ class Racking(Enum):
     BOTH = "both"
     CLOCKWISE = "clockwise"
     ANTICLOCKWISE = "anticlockwise"
+
+
+class Edge(Enum):
+    """An edge of a frame that a wall line under it holds along its own direction (plan grids)."""
+
+    BOTTOM = "bottom"
+    """Horizontal grid line 0: its nodes are held horizontally (along x)."""
+    TOP = "top"
+    """Horizontal grid line R: its nodes are held horizontally (along x)."""
+    LEFT = "left"
+    """Vertical grid line 0: its nodes are held vertically (along y)."""
+    RIGHT = "right"
+    """Vertical grid line C: its nodes are held vertically (along y)."""
+
+    @property
+    def along_x(self) -> bool:
+        """True for the bottom and top edges (they hold x), False for the sides (they hold y)."""
+        return self in (Edge.BOTTOM, Edge.TOP)
+
+
+class LoadSense(Enum):
+    """Which way a load case acts: as written, or reversed."""
+
+    PLUS = "+"
+    MINUS = "-"
+
+    @property
+    def factor(self) -> float:
+        """+1.0 or -1.0."""
+        return 1.0 if self is LoadSense.PLUS else -1.0

@@ -2,10 +2,10 @@
 
 Money in the optimizer is an integer number of *cost units*: one unit is
 1/10000 of the project's money unit (a hundredth of a cent). Each member's
-price (per piece + per metre x its bay's diagonal, plus contingency) is
-rounded once to whole units, so every solver works on exact integers and
-every reported total is the exact sum of those integers; reports show money
-with two decimals.
+price is the bill's price (per piece + per metre x its bay's cut length, plus
+contingency, rounded half up to the cent once: ``CostCatalogue.member_price_cents``),
+so every solver works on exact integers, minimises exactly the money the bill of
+materials prints, and every reported total is the exact sum of its members' prices.
 """
 
 from __future__ import annotations
@@ -28,14 +28,14 @@ def _read_only(array: npt.NDArray[np.generic]) -> npt.NDArray[np.generic]:
 SCALE = 10_000
 
 
-def cost_units(costs: CostCatalogue, kind: MemberKind, length_mm: float) -> int:
-    """Price of one member in whole cost units (1/10000 of a money unit).
+def cost_units(costs: CostCatalogue, kind: MemberKind, cut_length_mm: int) -> int:
+    """Price of one member in whole cost units (1/10000 of a money unit): its price to the cent.
 
     Example:
-        >>> cost_units(CostCatalogue(), MemberKind.BRACE, 5000.0)
+        >>> cost_units(CostCatalogue(), MemberKind.BRACE, 5000)
         650000
     """
-    return round(costs.member_cost(kind, length_mm) * SCALE)
+    return costs.member_price_cents(kind, cut_length_mm) * (SCALE // 100)
 
 
 def money(units: int | float) -> float:
@@ -122,16 +122,21 @@ def bay_table(
         >>> from bracegrid.model import Frame
         >>> t = bay_table(Frame("f", (3000, 4000), (4000,)), CostCatalogue(), (), frozenset(MemberKind))
         >>> t.brace_cost.tolist()
-        [[650000, 702548]]
+        [[650000, 702600]]
     """
     r_count, c_count = frame.rows, frame.cols
-    lengths = np.array(
-        [[frame.diagonal_length_mm(i, j) for j in range(1, c_count + 1)] for i in range(1, r_count + 1)],
-        dtype=float,
-    )
-    to_units = np.vectorize(lambda kind, length: cost_units(costs, kind, float(length)), otypes=[np.int64])
-    brace_cost = to_units(MemberKind.BRACE, lengths).astype(np.int64)
-    tie_cost = to_units(MemberKind.TIE, lengths).astype(np.int64)
+    # Prices depend only on the bay's size: price each distinct (width, height) once.
+    priced: dict[tuple[MemberKind, int, int], int] = {}
+
+    def units(kind: MemberKind, i: int, j: int) -> int:
+        key = (kind, frame.widths[j - 1], frame.heights[i - 1])
+        if key not in priced:
+            priced[key] = cost_units(costs, kind, frame.cut_length_mm(i, j))
+        return priced[key]
+
+    rows, cols = range(1, r_count + 1), range(1, c_count + 1)
+    brace_cost = np.array([[units(MemberKind.BRACE, i, j) for j in cols] for i in rows], dtype=np.int64)
+    tie_cost = np.array([[units(MemberKind.TIE, i, j) for j in cols] for i in rows], dtype=np.int64)
     open_bay = np.ones((r_count, c_count), dtype=bool)
     for r, c in blocked_bays(frame):
         open_bay[r - 1, c - 1] = False

@@ -240,11 +240,12 @@ def _solve_cp(
     if result.additions is None:
         msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
         raise SolverLimitError(msg)
-    method = SolveMethod.CUT_LOOP
-    if result.iterations == 0 and result.lp_rounds:
-        method = SolveMethod.LP_CUTS
-    elif result.iterations == 0 and result.proven:
-        method = SolveMethod.PATTERN_BOUND
+    if result.iterations > 0:
+        method = SolveMethod.CUT_LOOP
+    elif result.lp_rounds:
+        method = SolveMethod.LP_CUTS  # proven when the LP bound met the layout
+    else:  # no solver round: proven only if the closed-form floor met the warm start
+        method = SolveMethod.PATTERN_BOUND if result.proven else SolveMethod.WARM_START
     return _Found(result.additions, result.bound, result.proven, method, rounds=result.iterations, cuts=result.cuts)
 
 
@@ -273,8 +274,8 @@ def _finish(
     if proven:
         bound = added
     gap = 0.0 if added == 0 else (added - bound) / added
-    # Money is summed from the exact member prices (as the bill of materials does); the
-    # integer units only steer the search, so totals agree to the cent everywhere.
+    # Money is the sum of the members' prices to the cent (the bill's one rounding rule); the
+    # integer cost units hold exactly those prices, so the search minimised this very sum.
     cost = layout_cost(frame, costs, members)
     return FrameSolution(
         frame=dataclasses.replace(frame, members=members),

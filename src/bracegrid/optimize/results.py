@@ -25,36 +25,13 @@ class SolveMethod(Enum):
     CLOSED_FORM = "closed-form"
     """A complete uniform free frame: the closed-form optimum."""
     PATTERN_BOUND = "pattern-bound"
-    """A warm-start layout whose cost meets the complete-frame closed-form bound."""
+    """A warm-start layout whose cost meets the complete-frame closed-form bound (proven by it)."""
+    WARM_START = "warm-start"
+    """A warm-start layout (greedy repair, shuffled patterns); the time limit came before any solver round."""
     CUT_LOOP = "cut-loop"
     """CP-SAT on the cut model with lazily separated directed cuts."""
     LP_CUTS = "lp-cuts"
-    """The LP relaxation of the cut model (cuts separated on fractional points) proves the layout; no CP-SAT round."""
-
-
-def method_words(method: SolveMethod, *, pattern: PatternKind | None = None, rounds: int = 0, cuts: int = 0) -> str:
-    """A solution method in words.
-
-    Example:
-        >>> method_words(SolveMethod.CLOSED_FORM, pattern=PatternKind.CYCLE)
-        'closed form: one cycle of ties'
-        >>> method_words(SolveMethod.CUT_LOOP, rounds=3, cuts=40)
-        'CP-SAT directed cuts (3 rounds, 40 cuts)'
-    """
-    if method is SolveMethod.CLOSED_FORM:
-        return f"closed form: {pattern.words if pattern is not None else 'complete frame'}"
-    if method is SolveMethod.CUT_LOOP:
-        return f"CP-SAT directed cuts ({rounds} rounds, {cuts} cuts)"
-    return _METHOD_WORDS[method]
-
-
-_METHOD_WORDS = {
-    SolveMethod.KEPT: "kept members already suffice",
-    SolveMethod.SPANNING_TREE: "minimum spanning tree of braces",
-    SolveMethod.PINNED_ROWS: "pinned-base rows (exact per row)",
-    SolveMethod.PATTERN_BOUND: "pattern layout, proven by the complete-frame closed-form bound",
-    SolveMethod.LP_CUTS: "LP bound of the directed-cut model (HiGHS) met by the layout",
-}
+    """The LP relaxation of the cut model (cuts separated on fractional points) and its dive; no CP-SAT round."""
 
 
 class SolveStatus(Enum):
@@ -64,6 +41,65 @@ class SolveStatus(Enum):
     """Proven minimum cost."""
     FEASIBLE = "feasible"
     """Stable, but the time limit came before a proof; see the bound and gap."""
+
+
+def method_words(
+    method: SolveMethod,
+    status: SolveStatus,
+    *,
+    pattern: PatternKind | None = None,
+    rounds: int = 0,
+    cuts: int = 0,
+    gap: float = 0.0,
+) -> str:
+    """How a layout was found and what is proven about it, in words that follow from the status.
+
+    Only an OPTIMAL status earns the word "proven"; a FEASIBLE one says that the time limit
+    stopped the search and gives the gap to the proven bound.
+
+    Example:
+        >>> method_words(SolveMethod.CLOSED_FORM, SolveStatus.OPTIMAL, pattern=PatternKind.CYCLE)
+        'closed form: one cycle of ties; proven optimal'
+        >>> method_words(SolveMethod.CUT_LOOP, SolveStatus.OPTIMAL, rounds=1, cuts=40)
+        'CP-SAT directed cuts (1 round, 40 cuts); proven optimal'
+        >>> words = method_words(SolveMethod.PATTERN_BOUND, SolveStatus.FEASIBLE, gap=0.0323)
+        >>> words.split("; ")[1]
+        'not proven optimal: the time limit came first, gap 3.23% to the proven bound'
+    """
+    if method is SolveMethod.PATTERN_BOUND and status is not SolveStatus.OPTIMAL:
+        method = SolveMethod.WARM_START  # a bound that did not meet the layout proves nothing
+    how = method_how(method, pattern=pattern, rounds=rounds, cuts=cuts)
+    if status is SolveStatus.OPTIMAL:
+        return f"{how}; proven optimal"
+    return f"{how}; not proven optimal: the time limit came first, gap {100 * gap:.2f}% to the proven bound"
+
+
+def method_how(method: SolveMethod, *, pattern: PatternKind | None = None, rounds: int = 0, cuts: int = 0) -> str:
+    """How a layout was found, without what is proven (progress stages use it).
+
+    Example:
+        >>> method_how(SolveMethod.CUT_LOOP, rounds=1, cuts=40)
+        'CP-SAT directed cuts (1 round, 40 cuts)'
+    """
+    if method is SolveMethod.CLOSED_FORM:
+        return f"closed form: {pattern.words if pattern is not None else 'complete frame'}"
+    if method is SolveMethod.CUT_LOOP:
+        return f"CP-SAT directed cuts ({_count(rounds, 'round')}, {_count(cuts, 'cut')})"
+    return _METHOD_WORDS[method]
+
+
+def _count(n: int, word: str) -> str:
+    return f"{n} {word}" if n == 1 else f"{n} {word}s"
+
+
+_METHOD_WORDS = {
+    SolveMethod.KEPT: "kept members already suffice",
+    SolveMethod.SPANNING_TREE: "minimum spanning tree of braces",
+    SolveMethod.PINNED_ROWS: "pinned-base rows (exact per row)",
+    SolveMethod.PATTERN_BOUND: "pattern layout meeting the complete-frame closed-form bound",
+    SolveMethod.WARM_START: "warm-start layout (greedy repair and patterns), no solver round ran",
+    SolveMethod.LP_CUTS: "LP relaxation of the directed-cut model (HiGHS) and LP dive, no CP-SAT round",
+}
 
 
 @dataclass(frozen=True, slots=True)
@@ -145,8 +181,10 @@ class FrameSolution:
 
     @property
     def method_text(self) -> str:
-        """How it was solved, in words for reports."""
-        return method_words(self.method, pattern=self.pattern, rounds=self.rounds, cuts=self.cuts)
+        """How it was solved and what is proven, in words for reports (they follow from :attr:`status`)."""
+        return method_words(
+            self.method, self.status, pattern=self.pattern, rounds=self.rounds, cuts=self.cuts, gap=self.gap
+        )
 
 
 @dataclass(frozen=True, slots=True)

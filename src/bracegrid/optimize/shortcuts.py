@@ -22,7 +22,7 @@ import numpy as np
 from bracegrid.analysis.digraph import bay_arcs, strong_components
 from bracegrid.optimize.bays import Additions, AdditionsBuilder, BayTable
 from bracegrid.optimize.patterns import PatternKind, closed_form_cost, pattern
-from bracegrid.optimize.results import SolveMethod, method_words
+from bracegrid.optimize.results import SolveMethod, method_how
 
 
 @dataclass(frozen=True, slots=True)
@@ -41,8 +41,8 @@ class Shortcut:
 
     @property
     def words(self) -> str:
-        """The method in words."""
-        return method_words(self.method, pattern=self.pattern)
+        """The method in words (a progress stage; every shortcut is exact)."""
+        return method_how(self.method, pattern=self.pattern)
 
 
 class _Union:

@@ -1,9 +1,16 @@
-"""The bill of materials: every diagonal member with its cut length and price, and the CSV.
+"""The bill of materials: every diagonal member with its cut length and price, the totals, and the CSV files.
 
-The cut length is the node-to-node length of the bay diagonal (centre line of
-the grid), ``hypot(width, height)``; end allowances for couplers, plates or
-strap tails depend on the product and are left to the fitter. Prices come
-from the project's :class:`~bracegrid.model.CostCatalogue`.
+One rounding rule (docs/drawings.md, "Bill of materials"): a member's cut length
+is its node-to-node bay diagonal to the nearest whole millimetre
+(:meth:`~bracegrid.model.Frame.cut_length_mm`), and its price is worked out from
+that cut length and rounded half up to the cent once
+(:meth:`~bracegrid.model.CostCatalogue.member_price_cents`). Every row, subtotal
+and total is an integer sum of those millimetres and cents, so each total equals
+the sum of the rows printed above it, to the millimetre and the cent, on the
+sheet, in the CSV, in the HTML report and in ``--json``.
+
+End allowances for couplers, plates or strap tails depend on the product and
+are left to the fitter.
 """
 
 from __future__ import annotations
@@ -14,6 +21,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Racking
+from bracegrid.outputs.terms import money_text
 
 
 @dataclass(frozen=True, slots=True)
@@ -23,19 +31,24 @@ class BomLine:
     Attributes:
         frame: Frame name.
         member: The member.
-        cut_length_mm: Node-to-node diagonal length in mm.
-        cost: Price of the member from the cost catalogue.
+        cut_length_mm: Node-to-node diagonal length, whole mm.
+        cost_cents: Price of the member, whole cents.
     """
 
     frame: str
     member: Member
-    cut_length_mm: float
-    cost: float
+    cut_length_mm: int
+    cost_cents: int
+
+    @property
+    def cost(self) -> float:
+        """Price in money units."""
+        return self.cost_cents / 100
 
 
 @dataclass(frozen=True, slots=True)
 class BomTotals:
-    """Totals over a set of bill lines.
+    """Totals over a set of bill lines (sums of whole millimetres and whole cents).
 
     Attributes:
         braces: Number of rigid braces.
@@ -44,18 +57,18 @@ class BomTotals:
         proposed: Members proposed (to be supplied and fitted).
         brace_length_mm: Total cut length of the braces.
         tie_length_mm: Total cut length of the ties.
-        cost: Price of every member listed.
-        proposed_cost: Price of the proposed members only.
+        cost_cents: Price of every member listed.
+        proposed_cost_cents: Price of the proposed members only.
     """
 
     braces: int
     ties: int
     existing: int
     proposed: int
-    brace_length_mm: float
-    tie_length_mm: float
-    cost: float
-    proposed_cost: float
+    brace_length_mm: int
+    tie_length_mm: int
+    cost_cents: int
+    proposed_cost_cents: int
 
     @property
     def members(self) -> int:
@@ -63,9 +76,19 @@ class BomTotals:
         return self.braces + self.ties
 
     @property
-    def length_mm(self) -> float:
-        """Total diagonal length of every member."""
+    def length_mm(self) -> int:
+        """Total cut length of every member."""
         return self.brace_length_mm + self.tie_length_mm
+
+    @property
+    def cost(self) -> float:
+        """Price of every member, money units."""
+        return self.cost_cents / 100
+
+    @property
+    def proposed_cost(self) -> float:
+        """Price of the proposed members, money units."""
+        return self.proposed_cost_cents / 100
 
 
 @dataclass(frozen=True, slots=True)
@@ -75,16 +98,26 @@ class CutGroup:
     Attributes:
         kind: Brace or tie.
         existing: Whether these members are already in place.
-        cut_length_mm: Their common cut length, rounded to the millimetre.
+        cut_length_mm: Their common cut length, whole mm.
         count: How many.
-        cost: Their total price.
+        cost_cents: Their total price (the sum of their prices), whole cents.
     """
 
     kind: MemberKind
     existing: bool
     cut_length_mm: int
     count: int
-    cost: float
+    cost_cents: int
+
+    @property
+    def length_mm(self) -> int:
+        """Total cut length of the row: count x cut length, exact."""
+        return self.count * self.cut_length_mm
+
+    @property
+    def cost(self) -> float:
+        """Price of the row, money units."""
+        return self.cost_cents / 100
 
 
 @dataclass(frozen=True, slots=True)
@@ -134,19 +167,39 @@ def sum_lines(lines: Iterable[BomLine]) -> BomTotals:
         ties=len(ties),
         existing=sum(1 for x in items if x.member.existing),
         proposed=sum(1 for x in items if not x.member.existing),
-        brace_length_mm=float(sum(x.cut_length_mm for x in braces)),
-        tie_length_mm=float(sum(x.cut_length_mm for x in ties)),
-        cost=float(sum(x.cost for x in items)),
-        proposed_cost=float(sum(x.cost for x in items if not x.member.existing)),
+        brace_length_mm=sum(x.cut_length_mm for x in braces),
+        tie_length_mm=sum(x.cut_length_mm for x in ties),
+        cost_cents=sum(x.cost_cents for x in items),
+        proposed_cost_cents=sum(x.cost_cents for x in items if not x.member.existing),
+    )
+
+
+def sum_totals(parts: Iterable[BomTotals]) -> BomTotals:
+    """Totals over totals (a project from its frames).
+
+    Example:
+        >>> sum_totals([]).cost_cents
+        0
+    """
+    items = tuple(parts)
+    return BomTotals(
+        braces=sum(t.braces for t in items),
+        ties=sum(t.ties for t in items),
+        existing=sum(t.existing for t in items),
+        proposed=sum(t.proposed for t in items),
+        brace_length_mm=sum(t.brace_length_mm for t in items),
+        tie_length_mm=sum(t.tie_length_mm for t in items),
+        cost_cents=sum(t.cost_cents for t in items),
+        proposed_cost_cents=sum(t.proposed_cost_cents for t in items),
     )
 
 
 def _groups(lines: Sequence[BomLine]) -> tuple[CutGroup, ...]:
-    acc: dict[tuple[MemberKind, bool, int], tuple[int, float]] = {}
+    acc: dict[tuple[MemberKind, bool, int], tuple[int, int]] = {}
     for x in lines:
-        key = (x.member.kind, x.member.existing, round(x.cut_length_mm))
-        count, cost = acc.get(key, (0, 0.0))
-        acc[key] = (count + 1, cost + x.cost)
+        key = (x.member.kind, x.member.existing, x.cut_length_mm)
+        count, cost = acc.get(key, (0, 0))
+        acc[key] = (count + 1, cost + x.cost_cents)
     order = sorted(acc, key=lambda k: (k[0] is not MemberKind.BRACE, k[1], k[2]))
     return tuple(CutGroup(k[0], k[1], k[2], acc[k][0], acc[k][1]) for k in order)
 
@@ -166,13 +219,13 @@ def frame_bom(frame: Frame, project: Project) -> FrameBom:
         >>> f = Frame("f", (3000,), (4000,), members=(Member(1, 1, MemberKind.BRACE, Diagonal.RISING),))
         >>> b = frame_bom(f, Project("p", (f,)))
         >>> b.lines[0].cut_length_mm, b.totals.cost
-        (5000.0, 65.0)
+        (5000, 65.0)
     """
     members = sorted(frame.members, key=lambda m: m.sort_key)
     lines = []
     for m in members:
-        length = frame.diagonal_length_mm(m.row, m.col)
-        lines.append(BomLine(frame.name, m, length, project.costs.member_cost(m.kind, length)))
+        cut = frame.cut_length_mm(m.row, m.col)
+        lines.append(BomLine(frame.name, m, cut, project.costs.member_price_cents(m.kind, cut)))
     return FrameBom(frame=frame.name, lines=tuple(lines), groups=_groups(lines), totals=sum_lines(lines))
 
 
@@ -192,10 +245,10 @@ def build_bom(project: Project, *, frames: Sequence[Frame] | None = None) -> Bom
     """
     chosen = project.frames if frames is None else tuple(frames)
     bills = tuple(frame_bom(f, project) for f in chosen)
-    return Bom(project=project.name, frames=bills, totals=sum_lines(x for b in bills for x in b.lines))
+    return Bom(project=project.name, frames=bills, totals=sum_totals(b.totals for b in bills))
 
 
-#: Columns of the CSV bill, in order.
+#: Columns of the members CSV (``<stem>-bom.csv``), one row per member and nothing else.
 CSV_COLUMNS: tuple[str, ...] = (
     "frame",
     "row",
@@ -206,6 +259,20 @@ CSV_COLUMNS: tuple[str, ...] = (
     "resists",
     "cut_length_mm",
     "cost",
+)
+
+#: Columns of the totals CSV (``<stem>-bom-totals.csv``).
+TOTALS_COLUMNS: tuple[str, ...] = (
+    "scope",
+    "frame",
+    "braces",
+    "ties",
+    "existing",
+    "proposed",
+    "members",
+    "cut_length_mm",
+    "cost",
+    "proposed_cost",
 )
 
 
@@ -225,10 +292,7 @@ def resists(member: Member) -> Racking:
 
 
 def render_bom_csv(bom: Bom) -> str:
-    """The bill as CSV: one row per member, then a subtotal per frame and a total.
-
-    Subtotal rows have ``row`` empty and ``kind`` set to ``subtotal`` (or
-    ``total``); their ``cut_length_mm`` is the summed length.
+    """The bill as CSV: one row per member, no summary rows (a column sum is the total).
 
     Example:
         >>> render_bom_csv(build_bom(Project("p", (Frame("f", (3000,), (2000,)),)))).splitlines()[0]
@@ -237,12 +301,6 @@ def render_bom_csv(bom: Bom) -> str:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(CSV_COLUMNS)
-
-    def total_row(label: str, name: str, t: BomTotals) -> list[str]:
-        status = f"{t.existing} existing / {t.proposed} proposed"
-        counts = f"{t.braces} braces / {t.ties} ties"
-        return [name, "", "", label, counts, status, "", f"{t.length_mm:.0f}", f"{t.cost:.2f}"]
-
     for fb in bom.frames:
         for x in fb.lines:
             m = x.member
@@ -255,10 +313,34 @@ def render_bom_csv(bom: Bom) -> str:
                     m.diagonal.value,
                     "existing" if m.existing else "proposed",
                     resists(m).value,
-                    f"{x.cut_length_mm:.0f}",
-                    f"{x.cost:.2f}",
+                    x.cut_length_mm,
+                    money_text(x.cost_cents).replace(",", ""),
                 ]
             )
-        writer.writerow(total_row("subtotal", fb.frame, fb.totals))
-    writer.writerow(total_row("total", "", bom.totals))
+    return buffer.getvalue()
+
+
+def render_bom_totals_csv(bom: Bom) -> str:
+    """The bill's totals as CSV: one row per frame (``scope`` = ``frame``), then ``scope`` = ``all``.
+
+    Every column holds one kind of value (counts, whole mm, money); the ``all`` row is the
+    sum of the ``frame`` rows and of the members CSV.
+
+    Example:
+        >>> render_bom_totals_csv(build_bom(Project("p", (Frame("f", (3000,), (2000,)),)))).splitlines()[-1]
+        'all,,0,0,0,0,0,0,0.00,0.00'
+    """
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(TOTALS_COLUMNS)
+
+    def row(scope: str, name: str, t: BomTotals) -> list[object]:
+        return [
+            scope, name, t.braces, t.ties, t.existing, t.proposed, t.members, t.length_mm,
+            money_text(t.cost_cents).replace(",", ""), money_text(t.proposed_cost_cents).replace(",", ""),
+        ]  # fmt: skip
+
+    for fb in bom.frames:
+        writer.writerow(row("frame", fb.frame, fb.totals))
+    writer.writerow(row("all", "", bom.totals))
     return buffer.getvalue()

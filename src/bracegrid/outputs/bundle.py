@@ -7,14 +7,15 @@ from collections.abc import Sequence
 from datetime import date
 from enum import Enum
 
-from bracegrid.compare import Comparison, StrategyKey
+from bracegrid.compare import Comparison, StrategyKey, StrategyRobustness
 from bracegrid.errors import InputError
 from bracegrid.io import OutputFile
 from bracegrid.model import Frame, Project
-from bracegrid.outputs.bill import build_bom, render_bom_csv
+from bracegrid.outputs.bill import build_bom, render_bom_csv, render_bom_totals_csv
 from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes
 from bracegrid.outputs.htmlreport import render_html
 from bracegrid.outputs.preview import PreviewFormat, render_preview
+from bracegrid.outputs.robustplot import PlotFormat, render_robustness_plot, strategy_panels
 from bracegrid.outputs.text import render_compare_csv
 
 
@@ -88,8 +89,9 @@ def render_outputs(
         dpi: PNG resolution.
 
     Returns:
-        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet and
-        ``<stem>-bom.csv`` for the frames drawn.
+        The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet,
+        ``<stem>-bom.csv`` (one row per member) and ``<stem>-bom-totals.csv`` (per frame
+        and overall) for the frames drawn.
     """
     chosen = tuple(project.frames if frames is None else frames)
     groups: list[tuple[str, tuple[Frame, ...]]]
@@ -118,11 +120,17 @@ def render_outputs(
                 )
     bom = build_bom(project, frames=chosen)
     files.append(OutputFile(f"{stem}-bom.csv", render_bom_csv(bom).encode("utf-8")))
+    files.append(OutputFile(f"{stem}-bom-totals.csv", render_bom_totals_csv(bom).encode("utf-8")))
     return tuple(sheets), tuple(files)
 
 
 def render_compare_outputs(
-    comparison: Comparison, *, stem: str, when: date | None = None, time_limit: float | None = None
+    comparison: Comparison,
+    *,
+    stem: str,
+    when: date | None = None,
+    time_limit: float | None = None,
+    robustness: Sequence[StrategyRobustness] = (),
 ) -> tuple[OutputFile, ...]:
     """Render every file of a ``compare`` run in memory (nothing is written here).
 
@@ -131,10 +139,11 @@ def render_compare_outputs(
         stem: Base of the file names.
         when: Title-block and report date (default: today).
         time_limit: Seconds each strategy was given (stated in the report).
+        robustness: The strategies' robustness curves (then also ``<stem>-robustness.png``).
 
     Returns:
-        ``<stem>-compare.csv``, one ``<stem>-<strategy>.dxf`` per strategy that has a layout, and
-        ``report.html``.
+        ``<stem>-compare.csv``, one ``<stem>-<strategy>.dxf`` per strategy that has a layout, the
+        robustness plot when curves are given, and ``report.html``.
     """
     today = when or date.today()
     project = comparison.project
@@ -144,6 +153,9 @@ def render_compare_outputs(
         if solved:
             doc = build_drawing(project, frames=solved, when=today).doc
             files.append(OutputFile(f"{stem}-{key.value}.dxf", dxf_bytes(doc)))
-    page = render_html(comparison, when=today, time_limit=time_limit)
+    if robustness:
+        plot = render_robustness_plot(strategy_panels(robustness), PlotFormat.PNG)
+        files.append(OutputFile(f"{stem}-robustness.png", plot))
+    page = render_html(comparison, when=today, time_limit=time_limit, robustness=robustness)
     files.append(OutputFile("report.html", page.encode("utf-8")))
     return tuple(files)

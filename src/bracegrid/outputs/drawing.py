@@ -20,6 +20,8 @@ from datetime import date
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from shapely.geometry import Point
+
 from bracegrid._version import __version__
 from bracegrid.analysis import CAUTION, Verdict, check_frame
 from bracegrid.errors import ExportError
@@ -29,14 +31,18 @@ from bracegrid.model import (
     Frame,
     Member,
     MemberKind,
+    Opening,
     Project,
     Racking,
     Supports,
+    bay_box,
+    bays_blocked_by,
     blocked_bays,
     opening_polygon,
 )
 from bracegrid.outputs.bill import Bom, build_bom
 from bracegrid.outputs.layers import Layer, member_layer
+from bracegrid.outputs.markers import MarkerKind, place_markers
 from bracegrid.outputs.sheet import (
     GAP,
     H_SMALL,
@@ -55,8 +61,9 @@ from bracegrid.outputs.sheet import (
     title_size,
 )
 from bracegrid.outputs.symbols import (
-    BUBBLE_BLOCK,
-    BUBBLE_RADIUS,
+    BAY_TAG_BLOCK,
+    BAY_TAG_HEIGHT,
+    BAY_TAG_WIDTH,
     CRITICAL_BLOCK,
     DIM_STYLE,
     SUPPORT_BLOCK,
@@ -65,6 +72,7 @@ from bracegrid.outputs.symbols import (
     setup_document,
     text_width,
 )
+from bracegrid.outputs.terms import BLOCKED_LABEL, supports_words
 from bracegrid.units import DXF_INSUNITS, format_length_m
 
 if TYPE_CHECKING:
@@ -77,12 +85,12 @@ DXF_VERSION = "R2013"
 DXF_UNIT = "mm"
 
 # Annotation offsets from the frame outline, paper mm.
-_ROW_BUBBLE_X = -(2.5 + BUBBLE_RADIUS)
-_CHAIN_X = -(5.0 + 2 * BUBBLE_RADIUS + 4.0)
+_ROW_TAG_X = -(2.5 + BAY_TAG_WIDTH / 2)
+_CHAIN_X = -(5.0 + BAY_TAG_WIDTH + 4.0)
 _OVERALL_X = _CHAIN_X - 7.0
 _SUPPORT_DROP = 5.0
-_SENSE_AT = 0.28  # fraction along a tie from its lower end
-_CRITICAL_AT = 0.72
+#: Opening outlines are set in from the opening's edge by this much, paper mm.
+_OUTLINE_INSET = 0.8
 
 
 @dataclass(frozen=True, slots=True)
@@ -110,9 +118,25 @@ def plan_frame(frame: Frame) -> FrameSheet:
     return FrameSheet(frame=frame, verdict=check_frame(frame), blocked=blocked_bays(frame))
 
 
-def _part_tag(index: int, racking: Racking) -> str:
+def part_tag(index: int) -> str:
+    """Tag of the ``index``-th loose part: M for mechanism (not L, which reads as a lift).
+
+    Example:
+        >>> part_tag(2)
+        'M2'
+    """
+    return f"M{index}"
+
+
+def part_label(index: int, racking: Racking) -> str:
+    """Tag of a loose part with the way it can still rack.
+
+    Example:
+        >>> part_label(1, Racking.CLOCKWISE)
+        'M1 clockwise only'
+    """
     words = {Racking.BOTH: "both ways", Racking.CLOCKWISE: "clockwise only"}
-    return f"L{index} {words.get(racking, 'anticlockwise only')}"
+    return f"{part_tag(index)} {words.get(racking, 'anticlockwise only')}"
 
 
 def _column_part_notes(verdict: Verdict) -> list[str]:
@@ -121,22 +145,22 @@ def _column_part_notes(verdict: Verdict) -> list[str]:
     for k, part in enumerate(verdict.loose_parts, start=1):
         if not part.rows:
             cols = ", ".join(f"C{c}" for c in part.columns)
-            notes.append(f"{_part_tag(k, part.racking)} ({cols})")
+            notes.append(f"{part_label(k, part.racking)} ({cols})")
     return notes
 
 
 def _bottom_zone(frame: Frame) -> tuple[float, float, float]:
-    """y of the column bubbles, width chain and overall chain below the frame, paper mm."""
+    """y of the column tags, width chain and overall chain below the frame, paper mm."""
     drop = _SUPPORT_DROP if frame.supports is Supports.BASE else 0.0
-    bubble = -(drop + 2.5 + BUBBLE_RADIUS)
-    chain = bubble - BUBBLE_RADIUS - 5.0
-    return bubble, chain, chain - 7.0
+    tag = -(drop + 2.0 + BAY_TAG_HEIGHT / 2)
+    chain = tag - BAY_TAG_HEIGHT / 2 - 5.0
+    return tag, chain, chain - 7.0
 
 
 def _margins(fs: FrameSheet, heading_width: float) -> Margins:
     """Annotation room; ``heading_width`` is what the frame outline plus right margin must cover."""
     parts = fs.verdict.loose_parts
-    tags = [_part_tag(k, p.racking) for k, p in enumerate(parts, start=1)] + _column_part_notes(fs.verdict)
+    tags = [part_label(k, p.racking) for k, p in enumerate(parts, start=1)] + _column_part_notes(fs.verdict)
     right = 4.0 + max((text_width(t, H_SMALL) for t in tags), default=0.0) if tags else 3.0
     column_only = any(not p.rows for p in parts)
     _, _, overall = _bottom_zone(fs.frame)
@@ -153,19 +177,6 @@ def _box(fs: FrameSheet) -> FrameBox:
     return FrameBox(f.width_mm, f.height_mm, float(min(*f.widths, *f.heights)), _margins(fs, heading + 2.0))
 
 
-def _member_ends(frame: Frame, m: Member) -> tuple[tuple[float, float], tuple[float, float]]:
-    """Lower and upper end of a member, frame mm."""
-    xs, ys = frame.x_lines(), frame.y_lines()
-    x0, x1, y0, y1 = xs[m.col - 1], xs[m.col], ys[m.row - 1], ys[m.row]
-    if m.diagonal is Diagonal.RISING:
-        return (x0, y0), (x1, y1)
-    return (x1, y0), (x0, y1)  # falling: lower end at bottom-right
-
-
-def _along(a: tuple[float, float], b: tuple[float, float], t: float) -> tuple[float, float]:
-    return (a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1]))
-
-
 def member_endpoints(frame: Frame, m: Member) -> tuple[tuple[float, float], tuple[float, float]]:
     """Start and end of a member as drawn, frame mm (rising: bottom-left first; falling: top-left first).
 
@@ -180,7 +191,62 @@ def member_endpoints(frame: Frame, m: Member) -> tuple[tuple[float, float], tupl
     return (x0, y1), (x1, y0)
 
 
+_MARKER_BLOCKS = {
+    MarkerKind.RESISTS_CLOCKWISE: (TIE_CW_BLOCK, Layer.TIE_SENSE),
+    MarkerKind.RESISTS_ANTICLOCKWISE: (TIE_ACW_BLOCK, Layer.TIE_SENSE),
+    MarkerKind.CRITICAL: (CRITICAL_BLOCK, Layer.CRITICAL),
+}
+
+
+def label_spot(
+    frame: Frame,
+    opening: Opening,
+    *,
+    width_mm: float,
+    height_mm: float,
+    taken: frozenset[tuple[int, int]] = frozenset(),
+) -> tuple[float, float]:
+    """Where an opening's name goes: the centre of a bay it blocks, clear of grid lines.
+
+    The bay nearest the opening's centre whose part inside the opening holds the label
+    (``width_mm`` x ``height_mm``, mask included) and that carries no other label; failing
+    that, the opening's widest bay; failing that, a point inside the opening.
+
+    Example:
+        >>> from bracegrid.model import Frame, Opening
+        >>> hoist = Opening("hoist", ((3000, 0), (6000, 0), (6000, 8000), (3000, 8000)))
+        >>> label_spot(Frame("f", (3000,) * 3, (2000,) * 4), hoist, width_mm=1500, height_mm=500)
+        (4500.0, 3000.0)
+    """
+    polygon = opening_polygon(opening)
+    centre = polygon.centroid
+    bays = sorted(bays_blocked_by(frame, opening) - taken)
+    fitting, widest = [], []
+    for r, c in bays:
+        inside = bay_box(frame, r, c).intersection(polygon)
+        if inside.is_empty:
+            continue
+        x0, y0, x1, y1 = inside.bounds
+        spot = inside.centroid
+        away = spot.distance(centre)
+        widest.append((-(x1 - x0), away, (spot.x, spot.y)))
+        if x1 - x0 >= width_mm and y1 - y0 >= height_mm:
+            fitting.append((away, (spot.x, spot.y)))
+    if fitting:
+        return min(fitting)[1]
+    if widest:
+        return min(widest)[2]
+    point = polygon.representative_point()
+    return (point.x, point.y)
+
+
 def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], scale: float) -> None:
+    """One frame, drawn bottom layer first so nothing hides a label, an outline or a marker.
+
+    Order: loose-part shading, blocked-bay hatching, grid lines, bars, opening outlines (set in
+    from the edge, so one lying on a grid line still shows), members, markers (the diamond's
+    mask hides its member line), supports, then labels on masks, tags, dimensions, heading.
+    """
     f, v = fs.frame, fs.verdict
     ox, oy = origin
     pen = Pen(msp, scale, origin)
@@ -191,37 +257,16 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
         return (ox + x, oy + y)
 
     # loose parts first so everything else draws over the shading
-    for k, part in enumerate(v.loose_parts, start=1):
+    for part in v.loose_parts:
         for r in part.rows:
             add_hatch(msp, [at(0, ys[r - 1]), at(w, ys[r - 1]), at(w, ys[r]), at(0, ys[r])], Layer.LOOSE,
                       scale=scale, pattern=False)  # fmt: skip
         for c in part.columns:
             add_hatch(msp, [at(xs[c - 1], 0), at(xs[c], 0), at(xs[c], h), at(xs[c - 1], h)], Layer.LOOSE,
                       scale=scale, pattern=False)  # fmt: skip
-        tag = _part_tag(k, part.racking)
-        if part.rows:
-            r = part.rows[0]
-            pen.text(tag, w / scale + 2.0, (ys[r - 1] + ys[r]) / 2 / scale, height=H_SMALL, layer=Layer.LOOSE,
-                     align="MIDDLE_LEFT")  # fmt: skip
-        else:
-            c = part.columns[0]
-            pen.text(f"L{k}", (xs[c - 1] + xs[c]) / 2 / scale, h / scale + 1.5, height=H_SMALL, layer=Layer.LOOSE,
-                     align="BOTTOM_CENTER")  # fmt: skip
-    # column-only parts are explained in the right margin below the frame
-    for line, text in enumerate(_column_part_notes(v)):
-        pen.text(text, w / scale + 2.0, -3.0 - line * 3.5, height=H_SMALL, layer=Layer.LOOSE, align="MIDDLE_LEFT")
-    # blocked bays and openings
-    listed = f.blocked
     for r, c in sorted(fs.blocked):
         add_hatch(msp, [at(xs[c - 1], ys[r - 1]), at(xs[c], ys[r - 1]), at(xs[c], ys[r]), at(xs[c - 1], ys[r])],
                   Layer.OPENING_PATT, scale=scale, pattern=True)  # fmt: skip
-    for r, c in sorted(listed):
-        _label_box(pen, "blocked", (xs[c - 1] + xs[c]) / 2 / scale, (ys[r - 1] + ys[r]) / 2 / scale)
-    for opening in f.openings:
-        pts = [at(x, y) for x, y in opening.polygon]
-        msp.add_lwpolyline(pts, close=True, dxfattribs={"layer": Layer.OPENING.layer_name})
-        spot = opening_polygon(opening).representative_point()
-        _label_box(pen, opening.name, spot.x / scale, spot.y / scale)
     # grid lines (extended into the margins) and the bars
     ext = 2.0 * scale
     for x in xs:
@@ -232,45 +277,66 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
         msp.add_line(at(x, 0), at(x, h), dxfattribs={"layer": Layer.FRAME.layer_name})
     for y in ys:
         msp.add_line(at(0, y), at(w, y), dxfattribs={"layer": Layer.FRAME.layer_name})
-    # members and their markers
-    critical = {(m.row, m.col, m.diagonal) for m in v.critical_members}
+    # opening outlines above the bars, set in from the edge
+    for opening in f.openings:
+        pts = outline_points(opening, inset_mm=_OUTLINE_INSET * scale)
+        msp.add_lwpolyline([at(x, y) for x, y in pts], close=True, dxfattribs={"layer": Layer.OPENING.layer_name})
+    # members, then every marker (so no member line crosses a marker drawn before it)
     for m in sorted(f.members, key=lambda m: m.sort_key):
         a, b = member_endpoints(f, m)
         layer = member_layer(brace=m.kind is MemberKind.BRACE, existing=m.existing)
         msp.add_line(at(*a), at(*b), dxfattribs={"layer": layer.layer_name})
-        lo, hi = _member_ends(f, m)
-        if m.kind is MemberKind.TIE:
-            px, py = _along(lo, hi, _SENSE_AT)
-            name = TIE_CW_BLOCK if m.diagonal is Diagonal.RISING else TIE_ACW_BLOCK
-            pen.block(name, px / scale, py / scale, Layer.TIE_SENSE)
-        if (m.row, m.col, m.diagonal) in critical:
-            px, py = _along(lo, hi, _CRITICAL_AT)
-            pen.block(CRITICAL_BLOCK, px / scale, py / scale, Layer.CRITICAL)
+    for marker in place_markers(f, v.critical_members, scale=scale).markers:
+        name, layer = _MARKER_BLOCKS[marker.kind]
+        pen.block(name, marker.x, marker.y, layer, size=marker.size)
     # supports
     if f.supports is Supports.BASE:
         msp.add_line(at(-3.0 * scale, 0), at(w + 3.0 * scale, 0), dxfattribs={"layer": Layer.SUPPORT.layer_name})
         for x in xs:
             pen.block(SUPPORT_BLOCK, x / scale, 0.0, Layer.SUPPORT_SYMBOL)
-    # row and column labels
-    bubble_y, chain_y, overall_y = _bottom_zone(f)
+    # labels on masks, above everything they sit on
+    listed = frozenset(f.blocked)
+    for r, c in sorted(listed):
+        _label_box(pen, BLOCKED_LABEL, (xs[c - 1] + xs[c]) / 2 / scale, (ys[r - 1] + ys[r]) / 2 / scale)
+    taken = set(listed)
+    for opening in f.openings:
+        lw, lh = label_box_size(opening.name)
+        lx, ly = label_spot(f, opening, width_mm=lw * scale, height_mm=lh * scale, taken=frozenset(taken))
+        taken |= {bay for bay in bays_blocked_by(f, opening) if bay_box(f, *bay).contains(Point(lx, ly))}
+        _label_box(pen, opening.name, lx / scale, ly / scale)
+    # loose-part tags
+    for k, part in enumerate(v.loose_parts, start=1):
+        if part.rows:
+            r = part.rows[0]
+            pen.text(part_label(k, part.racking), w / scale + 2.0, (ys[r - 1] + ys[r]) / 2 / scale, height=H_SMALL,
+                     layer=Layer.LOOSE, align="MIDDLE_LEFT")  # fmt: skip
+        else:
+            c = part.columns[0]
+            pen.text(part_tag(k), (xs[c - 1] + xs[c]) / 2 / scale, h / scale + 1.5, height=H_SMALL, layer=Layer.LOOSE,
+                     align="BOTTOM_CENTER")  # fmt: skip
+    # column-only parts are explained in the right margin below the frame
+    for line, text in enumerate(_column_part_notes(v)):
+        pen.text(text, w / scale + 2.0, -3.0 - line * 3.5, height=H_SMALL, layer=Layer.LOOSE, align="MIDDLE_LEFT")
+    # row and column tags of the bays
+    tag_y, chain_y, overall_y = _bottom_zone(f)
     for r in range(1, f.rows + 1):
         cy = (ys[r - 1] + ys[r]) / 2 / scale
-        pen.block(BUBBLE_BLOCK, _ROW_BUBBLE_X, cy, Layer.GRID_LABEL)
-        pen.text(f"R{r}", _ROW_BUBBLE_X, cy, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
+        pen.block(BAY_TAG_BLOCK, _ROW_TAG_X, cy, Layer.GRID_LABEL)
+        pen.text(f"R{r}", _ROW_TAG_X, cy, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
     for c in range(1, f.cols + 1):
         cx = (xs[c - 1] + xs[c]) / 2 / scale
-        pen.block(BUBBLE_BLOCK, cx, bubble_y, Layer.GRID_LABEL)
-        pen.text(f"C{c}", cx, bubble_y, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
-    # dimension chains: defining points just outside the bubbles, so extension lines stay short
+        pen.block(BAY_TAG_BLOCK, cx, tag_y, Layer.GRID_LABEL)
+        pen.text(f"C{c}", cx, tag_y, height=H_SMALL, layer=Layer.GRID_LABEL, align="MIDDLE_CENTER")
+    # dimension chains: defining points just outside the tags, so extension lines stay short
     dim_layer = {"layer": Layer.GRID_DIMS.layer_name}
-    foot = (bubble_y - BUBBLE_RADIUS - 1.0) * scale
+    foot = (tag_y - BAY_TAG_HEIGHT / 2 - 1.0) * scale
     for c in range(1, f.cols + 1):
         msp.add_linear_dim(base=at(xs[c - 1], chain_y * scale), p1=at(xs[c - 1], foot), p2=at(xs[c], foot),
                            dimstyle=DIM_STYLE, dxfattribs=dim_layer).render()  # fmt: skip
     if f.cols > 1:
         msp.add_linear_dim(base=at(0, overall_y * scale), p1=at(0, foot), p2=at(w, foot),
                            dimstyle=DIM_STYLE, dxfattribs=dim_layer).render()  # fmt: skip
-    side = (_ROW_BUBBLE_X - BUBBLE_RADIUS - 1.0) * scale
+    side = (_ROW_TAG_X - BAY_TAG_WIDTH / 2 - 1.0) * scale
     for r in range(1, f.rows + 1):
         msp.add_linear_dim(base=at(_CHAIN_X * scale, ys[r - 1]), p1=at(side, ys[r - 1]), p2=at(side, ys[r]),
                            angle=90, dimstyle=DIM_STYLE, dxfattribs=dim_layer).render()  # fmt: skip
@@ -285,6 +351,25 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
     pen.text(f.name.upper(), 0.0, top + 8.5, height=H_TITLE, layer=Layer.TEXT)
 
 
+def outline_points(opening: Opening, *, inset_mm: float) -> list[tuple[float, float]]:
+    """An opening's outline set in from its edge by ``inset_mm`` (frame mm), so it never lies on a grid line.
+
+    Falls back to the outline itself when the opening is too thin to set in.
+
+    Example:
+        >>> from bracegrid.model import Opening
+        >>> outline_points(Opening("door", ((0, 0), (1000, 0), (1000, 2000), (0, 2000))), inset_mm=100)[:2]
+        [(100.0, 100.0), (100.0, 1900.0)]
+    """
+    polygon = opening_polygon(opening)
+    inner = polygon.buffer(-inset_mm, join_style="mitre") if polygon.is_valid else polygon
+    if inner.is_empty or inner.geom_type != "Polygon":
+        inner = polygon
+    coords = [(float(x), float(y)) for x, y in inner.exterior.coords[:-1]]
+    first = min(range(len(coords)), key=lambda i: (coords[i][1], coords[i][0]))  # lowest, leftmost corner first
+    return coords[first:] + coords[:first]
+
+
 def _heading(fs: FrameSheet) -> tuple[str, str]:
     """The size line and the verdict line written above a frame."""
     f, v = fs.frame, fs.verdict
@@ -293,15 +378,18 @@ def _heading(fs: FrameSheet) -> tuple[str, str]:
         state = f"STABLE; {crit} critical member{'s' if crit != 1 else ''}"
     else:
         state = f"NOT STABLE: {v.racking_modes} racking mode{'s' if v.racking_modes != 1 else ''} left"
-    held = "pinned base" if f.supports is Supports.BASE else "free-standing"
-    size = f"{f.cols} x {f.rows} bays, {format_length_m(f.width_mm)} x {format_length_m(f.height_mm)}, {held}"
-    return size, state
+    size = f"{f.cols} x {f.rows} bays, {format_length_m(f.width_mm)} x {format_length_m(f.height_mm)}, "
+    return size + supports_words(f.supports), state
+
+
+def label_box_size(text: str) -> tuple[float, float]:
+    """Width and height of a label with its mask, paper mm."""
+    return text_width(text, H_SMALL) + 1.6, H_SMALL + 1.6
 
 
 def _label_box(pen: Pen, text: str, x: float, y: float) -> None:
-    """A centred label on a wipeout mask so the hatching does not run through it."""
-    half_w = text_width(text, H_SMALL) / 2 + 0.8
-    half_h = H_SMALL / 2 + 0.8
+    """A centred label on a wipeout mask so the hatching and grid lines do not run through it."""
+    half_w, half_h = (d / 2 for d in label_box_size(text))
     corners = [pen.at(x - half_w, y - half_h), pen.at(x + half_w, y + half_h)]
     mask = pen.msp.add_wipeout(corners)
     mask.dxf.layer = Layer.OPENING_LABEL.layer_name

@@ -7,14 +7,35 @@ tools read are fixed (see docs/). Values are Python scalars, never numpy ones.
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 
-from bracegrid.analysis import CAUTION, Verdict, anchor_words, describe_part
+from bracegrid.analysis import (
+    CAUTION,
+    CONFIDENCE,
+    ROBUSTNESS_LIMITS,
+    Addition,
+    AdditionAdvice,
+    Robustness,
+    Verdict,
+    addition_words,
+    anchor_words,
+    describe_part,
+)
 from bracegrid.compare import Comparison, StrategyKey
-from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, blocked_bays, layout_cost
+from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
+from bracegrid.model import (
+    CostCatalogue,
+    Frame,
+    Member,
+    MemberKind,
+    Project,
+    blocked_bays,
+    layout_cost,
+    layout_length_mm,
+)
 from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution
-from bracegrid.units import length_in_unit
+from bracegrid.units import length_in_unit, metres
 
 
 def member_dict(member: Member) -> dict[str, Any]:
@@ -47,40 +68,128 @@ def verdict_dict(verdict: Verdict) -> dict[str, Any]:
     }
 
 
-def check_dict(verdicts: Sequence[Verdict]) -> dict[str, Any]:
-    """The JSON object of ``bracegrid check``."""
+def addition_dict(addition: Addition) -> dict[str, Any]:
+    """One candidate addition as JSON: the member, the loose parts it locks, its price."""
     return {
-        "stable": all(v.stable for v in verdicts),
-        "frames": [verdict_dict(v) for v in verdicts],
+        "member": member_dict(addition.member),
+        "parts_locked": addition.parts_locked,
+        "cost": addition.cost,
+        "description": addition_words(addition),
+    }
+
+
+def check_dict(
+    verdicts: Sequence[Verdict],
+    *,
+    forces: Mapping[str, FrameForces] | None = None,
+    additions: Mapping[str, AdditionAdvice] | None = None,
+) -> dict[str, Any]:
+    """The JSON object of ``bracegrid check``.
+
+    Args:
+        verdicts: One per frame.
+        forces: Frames with load cases (by name) gain a ``forces`` summary.
+        additions: For unstable frames (by name), the single additions that lock the most loose
+            parts; each frame listed gets ``best_additions`` and ``best_additions_per_cost``.
+    """
+    frames = []
+    for v in verdicts:
+        item = verdict_dict(v)
+        if forces and v.frame in forces:
+            item["forces"] = force_summary_dict(forces[v.frame])
+        advice = (additions or {}).get(v.frame)
+        if advice is not None:
+            item["best_additions"] = [addition_dict(a) for a in advice.most]
+            item["best_additions_per_cost"] = [addition_dict(a) for a in advice.per_cost]
+        frames.append(item)
+    return {"stable": all(v.stable for v in verdicts), "frames": frames, "caution": CAUTION}
+
+
+def robustness_frame_dict(result: Robustness) -> dict[str, Any]:
+    """One frame's robustness statistics as JSON.
+
+    The keys ``name``, ``members``, ``curve`` (``lost``, ``p_stable``, ``low``, ``high``, ``exact``)
+    and ``expected_losses_to_mechanism`` are fixed (docs/robustness.md); the others add detail.
+    """
+    e = result.expected_losses
+    return {
+        "name": result.frame,
+        "members": result.members,
+        "curve": [
+            {"lost": p.lost, "p_stable": p.p_stable, "low": p.low, "high": p.high, "exact": p.exact}
+            for p in result.curve
+        ],
+        "expected_losses_to_mechanism": None if e is None else e.value,
+        "expected_losses_low": None if e is None else e.low,
+        "expected_losses_high": None if e is None else e.high,
+        "expected_losses_exact": None if e is None else e.exact,
+        "stable": result.stable,
+        "losable": result.losable,
+        "samples": result.samples,
+        "seed": result.seed,
+        "loss_likelihood": {k.value: result.likelihood.weight(k) for k in MemberKind},
+        "member_ranking": [
+            {
+                "member": member_dict(d.member),
+                "curve_drop": d.drop,
+                "low": d.low,
+                "high": d.high,
+                "critical": d.critical,
+            }
+            for d in result.ranking
+        ],
+        "ranking_samples": result.ranking_samples,
+    }
+
+
+def robustness_dict(results: Sequence[Robustness]) -> dict[str, Any]:
+    """The JSON object of ``bracegrid robustness``: ``{"frames": [...]}`` plus the method and limits."""
+    return {
+        "frames": [robustness_frame_dict(r) for r in results],
+        "confidence": CONFIDENCE,
+        "intervals": "Clopper-Pearson for probabilities, Student t for means",
+        "limits": ROBUSTNESS_LIMITS,
         "caution": CAUTION,
     }
 
 
 def solution_counts(solution: FrameSolution) -> dict[str, Any]:
-    """Counts and diagonal length of one frame solution."""
+    """Counts and total cut length of one frame solution (``length_mm`` whole mm, ``length_m`` the same in m)."""
     frame = solution.frame
     members = solution.members
     new = [m for m in members if not m.existing]
-    length_mm = sum(frame.diagonal_length_mm(m.row, m.col) for m in members)
+    length_mm = layout_length_mm(frame, members)
     return {
         "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
         "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
         "new_braces": sum(1 for m in new if m.kind is MemberKind.BRACE),
         "new_ties": sum(1 for m in new if m.kind is MemberKind.TIE),
-        "length_m": round(length_mm / 1000.0, 3),
+        "length_mm": length_mm,
+        "length_m": metres(length_mm),
     }
 
 
-def optimize_member_dict(member: Member) -> dict[str, Any]:
-    """A member of an optimized layout as JSON (with whether it was kept)."""
-    return {**member_dict(member), "existing": member.existing}
+def optimize_member_dict(
+    member: Member, frame: Frame | None = None, costs: CostCatalogue | None = None
+) -> dict[str, Any]:
+    """A member of a layout as JSON: whether it was kept and, given its frame and prices, its cut length and price.
+
+    ``cost`` follows the bill's one rounding rule, so a frame's ``cost`` is the sum of its members'.
+    """
+    out: dict[str, Any] = {**member_dict(member), "existing": member.existing}
+    if frame is not None and costs is not None:
+        cut = frame.cut_length_mm(member.row, member.col)
+        out["cut_length_mm"] = cut
+        out["cost"] = costs.member_price_cents(member.kind, cut) / 100
+    return out
 
 
-def frame_solution_dict(solution: FrameSolution) -> dict[str, Any]:
+def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue | None = None) -> dict[str, Any]:
     """One frame's optimizer answer as a JSON-ready dict.
 
     Args:
         solution: One frame's answer.
+        costs: The prices; given, each member carries its ``cut_length_mm`` and ``cost``.
 
     Returns:
         name, status, cost, added_cost, bound, gap, seconds, method, counts,
@@ -105,7 +214,7 @@ def frame_solution_dict(solution: FrameSolution) -> dict[str, Any]:
         "diagonal_length_m": parts["length_m"],
         "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
         "removed": [member_dict(m) for m in solution.verdict.removed],
-        "members": [optimize_member_dict(m) for m in solution.members],
+        "members": [optimize_member_dict(m, solution.frame, costs) for m in solution.members],
     }
 
 
@@ -121,7 +230,7 @@ def optimize_dict(solution: ProjectSolution) -> dict[str, Any]:
     return {
         "cost": solution.cost,
         "added_cost": solution.added_cost,
-        "frames": [frame_solution_dict(f) for f in solution.frames],
+        "frames": [frame_solution_dict(f, solution.project.costs) for f in solution.frames],
         "caution": CAUTION,
     }
 
@@ -141,13 +250,20 @@ def compare_rows(comparison: Comparison) -> list[dict[str, Any]]:
                     "stable": s.stable,
                     "braces": s.braces,
                     "ties": s.ties,
-                    "diagonal_length_m": round(s.length_mm / 1000.0, 3),
+                    "kept_braces": s.kept_braces,
+                    "kept_ties": s.kept_ties,
+                    "added_braces": s.added_braces,
+                    "added_ties": s.added_ties,
+                    "diagonal_length_m": metres(s.length_mm),
                     "critical_members": s.critical,
                     "redundancy": s.redundancy,
                     "bound": s.bound,
                     "gap": s.gap,
                     "seconds": s.seconds,
                     "note": s.note,
+                    "max_utilisation": _r(s.forces.max_utilisation) if s.forces else None,
+                    "max_drift": _r(s.forces.max_drift, 9) if s.forces else None,
+                    "within_capacity": s.forces.ok if s.forces else None,
                 }
             )
     return rows
@@ -189,13 +305,13 @@ def compare_progress_dict(frame: str, key: StrategyKey, step: int, steps: int) -
 def layout_summary_dict(frame: Frame, costs: CostCatalogue) -> dict[str, Any]:
     """Member counts, diagonal length and price of a frame's layout (its members as they stand)."""
     members = frame.members
-    length_mm = sum(frame.diagonal_length_mm(m.row, m.col) for m in members)
+    length_mm = layout_length_mm(frame, members)
     return {
         "members": len(members),
         "braces": sum(1 for m in members if m.kind is MemberKind.BRACE),
         "ties": sum(1 for m in members if m.kind is MemberKind.TIE),
         "proposed": sum(1 for m in members if not m.existing),
-        "diagonal_length_m": round(length_mm / 1000.0, 3),
+        "diagonal_length_m": metres(length_mm),
         "cost": layout_cost(frame, costs, members),
     }
 
@@ -305,3 +421,112 @@ def problems_dict(problems: Iterable[str], *, frame_names: Sequence[str] = ()) -
 def error_dict(error: str, message: str, **extra: Any) -> dict[str, Any]:
     """Any refused request as JSON: a short error word, a sentence, and what else helps the caller."""
     return {"error": error, "message": message, **extra}
+
+
+# --------------------------------------------------------------------------- member forces
+
+
+def _r(value: float | None, digits: int = 6) -> float | None:
+    return None if value is None else round(float(value), digits) + 0.0
+
+
+def member_force_dict(m: MemberForce) -> dict[str, Any]:
+    """One bar's force as JSON (fixed keys: kind, row/col/diagonal or line/row or line/col, force_kn, utilisation).
+
+    Example:
+        >>> from bracegrid.mechanics import BarKind, MemberForce
+        >>> member_force_dict(MemberForce(BarKind.STANDARD, 3, 2, None, None, -12.5, 40.0, 0.3125))
+        {'kind': 'standard', 'line': 3, 'row': 2, 'force_kn': -12.5, 'utilisation': 0.3125, 'capacity_kn': 40.0}
+    """
+    out: dict[str, Any] = {"kind": m.kind.value}
+    if m.kind is BarKind.STANDARD:
+        out |= {"line": m.line, "row": m.row}
+    elif m.kind is BarKind.LEDGER:
+        out |= {"line": m.line, "col": m.col}
+    else:
+        out |= {"row": m.row, "col": m.col, "diagonal": m.diagonal.value if m.diagonal else None}
+    out |= {"force_kn": _r(m.force_kn), "utilisation": _r(m.utilisation), "capacity_kn": m.capacity_kn}
+    if m.kind is BarKind.TIE:
+        out["slack"] = m.slack
+    return out
+
+
+def reaction_dict(r: Reaction) -> dict[str, Any]:
+    """One support reaction as JSON (fixed keys: line, fx_kn, fy_kn)."""
+    out: dict[str, Any] = {
+        "line": r.line,
+        "fx_kn": _r(r.fx_kn),
+        "fy_kn": _r(r.fy_kn),
+        "support": r.support,
+        "p": r.p,
+        "q": r.q,
+    }
+    if r.support == "base":
+        out |= {"uplift_kn": _r(r.uplift_kn), "uplift_limit_kn": r.uplift_limit_kn, "uplift_over": r.uplift_over}
+    return out
+
+
+def case_forces_dict(c: CaseForces) -> dict[str, Any]:
+    """One load case in one sense as JSON (fixed keys: name, sense, mechanism, members, reactions, sway_mm)."""
+    governing = c.governing
+    return {
+        "name": c.case,
+        "sense": c.sense.value,
+        "mechanism": c.is_mechanism,
+        "members": [member_force_dict(m) for m in c.members],
+        "reactions": [reaction_dict(r) for r in c.reactions],
+        "sway_mm": [_r(s) for s in c.sway_mm],
+        "drift": [_r(d, 9) for d in c.drift],
+        "sway_y_mm": [_r(s) for s in c.sway_y_mm],
+        "ok": c.ok,
+        "max_utilisation": _r(c.max_utilisation),
+        "governing": None if governing is None else member_force_dict(governing),
+        "over_capacity": [member_force_dict(m) for m in c.over_capacity],
+        "uplift_over": [reaction_dict(r) for r in c.uplift_over],
+        "slack_ties": len(c.slack_ties),
+        "mechanism_kind": c.mechanism.kind.value if c.mechanism else None,
+        "mechanism_description": list(c.mechanism.words) if c.mechanism else [],
+        "load_kn": _r(c.load_kn),
+        "residual_kn": c.residual_kn,
+        "newton_steps": c.steps,
+    }
+
+
+def force_summary_dict(ff: FrameForces) -> dict[str, Any]:
+    """A frame's force results in brief (for ``check --json``)."""
+    governing = ff.governing
+    return {
+        "ok": ff.ok,
+        "max_utilisation": _r(ff.max_utilisation),
+        "max_drift": _r(ff.max_drift, 9),
+        "governing": None if governing is None else {**member_force_dict(governing.member), "case": governing.case},
+        "mechanism_cases": [c.title for c in ff.mechanisms],
+    }
+
+
+def frame_forces_dict(ff: FrameForces) -> dict[str, Any]:
+    """One frame's force analysis as JSON."""
+    return {
+        "name": ff.frame,
+        "cases": [case_forces_dict(c) for c in ff.cases],
+        "envelope": [
+            {
+                **member_force_dict(e.member),
+                "max_tension_kn": _r(e.max_tension_kn),
+                "max_compression_kn": _r(e.max_compression_kn),
+                "case": e.case,
+            }
+            for e in ff.envelope
+        ],
+        **force_summary_dict(ff),
+    }
+
+
+def forces_dict(frames: Sequence[FrameForces]) -> dict[str, Any]:
+    """The JSON object of ``bracegrid forces``."""
+    return {
+        "ok": all(f.ok for f in frames),
+        "frames": [frame_forces_dict(f) for f in frames],
+        "model_limits": MODEL_LIMITS,
+        "caution": CAUTION,
+    }

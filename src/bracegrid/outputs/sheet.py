@@ -10,20 +10,35 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date
+from enum import Enum
 from typing import TYPE_CHECKING, Any
 
+from bracegrid.model import MemberKind
 from bracegrid.outputs.bill import Bom, BomTotals
 from bracegrid.outputs.layers import Layer, member_layer
 from bracegrid.outputs.symbols import (
-    BUBBLE_BLOCK,
+    BAY_TAG_BLOCK,
+    BLOCKED_PATTERN,
     CRITICAL_BLOCK,
     SUPPORT_BLOCK,
     TEXT_STYLE,
     TIE_ACW_BLOCK,
     TIE_CW_BLOCK,
+    blocked_pattern,
     text_width,
 )
-from bracegrid.units import format_length_m
+from bracegrid.outputs.terms import (
+    BLOCKED_LABEL,
+    COST,
+    COUNT,
+    CUT_EACH,
+    LENGTH,
+    MEMBER,
+    STATUS,
+    counts_words,
+    money_text,
+)
+from bracegrid.units import metres_text
 
 if TYPE_CHECKING:
     from ezdxf.layouts.layout import Modelspace
@@ -170,7 +185,16 @@ class Pen:
         return (self.origin[0] + x * self.scale, self.origin[1] + y * self.scale)
 
     def text(
-        self, text: str, x: float, y: float, *, height: float, layer: Layer, align: str = "LEFT", rotation: float = 0.0
+        self,
+        text: str,
+        x: float,
+        y: float,
+        *,
+        height: float,
+        layer: Layer,
+        align: str = "LEFT",
+        rotation: float = 0.0,
+        color: int = 256,
     ) -> None:
         """A one-line TEXT entity."""
         from ezdxf.enums import TextEntityAlignment
@@ -179,7 +203,7 @@ class Pen:
             text,
             height=height * self.scale,
             rotation=rotation,
-            dxfattribs={"layer": layer.layer_name, "style": TEXT_STYLE},
+            dxfattribs={"layer": layer.layer_name, "style": TEXT_STYLE, "color": color},
         )
         entity.set_placement(self.at(x, y), align=TextEntityAlignment[align])
 
@@ -192,79 +216,111 @@ class Pen:
         pts = [self.at(x, y), self.at(x + w, y), self.at(x + w, y + h), self.at(x, y + h)]
         self.msp.add_lwpolyline(pts, close=True, dxfattribs={"layer": layer.layer_name, **attribs})
 
-    def block(self, name: str, x: float, y: float, layer: Layer, **attribs: Any) -> None:
-        """Insert a paper-size block."""
+    def block(self, name: str, x: float, y: float, layer: Layer, *, size: float = 1.0, **attribs: Any) -> None:
+        """Insert a paper-size block, ``size`` times its drawn size."""
+        factor = self.scale * size
         self.msp.add_blockref(
             name,
             self.at(x, y),
-            dxfattribs={"layer": layer.layer_name, "xscale": self.scale, "yscale": self.scale, **attribs},
+            dxfattribs={"layer": layer.layer_name, "xscale": factor, "yscale": factor, **attribs},
         )
 
 
 # --------------------------------------------------------------------------- legend
 
+#: Height of a legend row, paper mm, by sample (marker samples need more room than line samples).
 _LEGEND_ROW = 4.2
-#: Rows needing more height than the others (support symbol, grid bubble).
-_LEGEND_TALL = {"support": 5.2, "bubble": 7.2}
+_LEGEND_TALL = {"cw": 6.0, "acw": 6.0, "crit": 6.0, "support": 5.6, "bay": 5.6, "blocked": 5.0, "opening": 5.0}
+#: Width of the sample column, paper mm.
+_SAMPLE_W = 16.0
 _LEGEND_ROWS: tuple[tuple[str, str], ...] = (
     ("brace-new", "rigid brace, proposed (heavy, solid)"),
     ("brace-old", "rigid brace, existing (light, solid)"),
     ("tie-new", "tension-only tie, proposed (heavy, dashed)"),
     ("tie-old", "tension-only tie, existing (light, dashed)"),
-    ("cw", "tie resists clockwise racking (row top sways right)"),
-    ("acw", "tie resists anticlockwise racking (row top sways left)"),
-    ("crit", "critical member: its loss leaves a mechanism"),
-    ("blocked", "blocked bay: no member may go there"),
-    ("opening", "opening outline, named"),
-    ("loose", "loose part: can still rack (tag gives the sense)"),
-    ("support", "pinned support on the ground line"),
-    ("bubble", "R = row (R1 at the bottom), C = column (C1 at the left)"),
+    ("bar", "frame bar: standard or ledger"),
     ("grid", "grid line (member centre line)"),
+    ("cw", "rising tie: resists clockwise racking (top sways right)"),
+    ("acw", "falling tie: resists anticlockwise racking (top sways left)"),
+    ("crit", "critical member: its loss leaves a mechanism"),
+    ("blocked", "blocked bay, listed in the project file (label)"),
+    ("hatched", "bay blocked by an opening: no member may go there"),
+    ("opening", "opening: outline set just inside its edge, named"),
+    ("loose", "loose part: can still rack (shaded rows, columns)"),
+    ("tag", "M1 = loose part (mechanism) 1 and the way it racks"),
+    ("support", "pinned support on the ground line"),
+    ("bay", "bay tags: R = row of bays (R1 at the bottom), C = column"),
 )
+
+
+def legend_rows() -> tuple[tuple[str, str, float], ...]:
+    """The legend's rows: key, words and row height (paper mm), top to bottom.
+
+    Example:
+        >>> [key for key, _, _ in legend_rows()][:3]
+        ['brace-new', 'brace-old', 'tie-new']
+    """
+    return tuple((key, words, _LEGEND_TALL.get(key, _LEGEND_ROW)) for key, words in _LEGEND_ROWS)
 
 
 def legend_size() -> tuple[float, float]:
     """Width and height of the legend, paper mm."""
-    rows = sum(_LEGEND_TALL.get(key, _LEGEND_ROW) for key, _ in _LEGEND_ROWS)
-    return (96.0, 9.0 + rows)
+    width = 3.0 + _SAMPLE_W + 3.0 + max(text_width(words, H_SMALL) for _, words in _LEGEND_ROWS) + 3.0
+    return (width, 9.0 + sum(step for _, _, step in legend_rows()))
 
 
 def draw_legend(pen: Pen, x: float, y: float) -> None:
-    """The legend with its bottom-left corner at paper (x, y)."""
+    """The legend with its bottom-left corner at paper (x, y).
+
+    Samples sit on the legend layer with the look of the layer they explain, so the
+    drawing layers hold only what is drawn on the frames. Each sample stays inside its
+    own row (tests check that no two samples overlap).
+    """
     w, h = legend_size()
     lay = Layer.LEGEND
     pen.rect(x, y, w, h, lay)
     pen.text("LEGEND", x + 2, y + h - 4.5, height=H_LABEL, layer=lay)
     cy = y + h - 7.0
-    for key, words in _LEGEND_ROWS:
-        step = _LEGEND_TALL.get(key, _LEGEND_ROW)
+    x0, x1 = x + 3, x + 3 + _SAMPLE_W
+    mid = (x0 + x1) / 2
+    for key, words, step in legend_rows():
         cy -= step / 2
-        x0, x1 = x + 3, x + 15
-        # Samples sit on the legend layer with the look of the layer they explain,
-        # so the drawing layers hold only what is drawn on the frames.
+        top, bottom = cy + step / 2 - 0.5, cy - step / 2 + 0.5
         if key in {"brace-new", "brace-old", "tie-new", "tie-old"}:
             layer = member_layer(brace=key.startswith("brace"), existing=key.endswith("old"))
             pen.line((x0, cy), (x1, cy), lay, **_look(layer))
-        elif key in {"cw", "acw"}:
-            pen.line((x0, cy - 1.6), (x1, cy + 1.6), lay, **_look(member_layer(brace=False, existing=False)))
-            pen.block(TIE_CW_BLOCK if key == "cw" else TIE_ACW_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.TIE_SENSE))
-        elif key == "crit":
-            pen.line((x0, cy - 1.6), (x1, cy + 1.6), lay, **_look(member_layer(brace=True, existing=False)))
-            pen.block(CRITICAL_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.CRITICAL))
-        elif key == "blocked":
-            _hatch_rect(pen, x0, cy - 1.8, x1 - x0, 3.6, Layer.OPENING_PATT, pattern=True)
-        elif key == "opening":
-            pen.rect(x0, cy - 1.8, x1 - x0, 3.6, lay, **_look(Layer.OPENING))
-        elif key == "loose":
-            _hatch_rect(pen, x0, cy - 1.8, x1 - x0, 3.6, Layer.LOOSE, pattern=False)
-        elif key == "support":
-            pen.line((x0, cy + 2.0), (x1, cy + 2.0), lay, **_look(Layer.SUPPORT))
-            pen.block(SUPPORT_BLOCK, (x0 + x1) / 2, cy + 2.0, lay, **_look(Layer.SUPPORT_SYMBOL))
-        elif key == "bubble":
-            pen.block(BUBBLE_BLOCK, (x0 + x1) / 2, cy, lay, **_look(Layer.GRID_LABEL))
-            pen.text("R1", (x0 + x1) / 2, cy, height=H_SMALL, layer=lay, align="MIDDLE_CENTER")
-        else:
+        elif key == "bar":
+            pen.line((x0, cy), (x1, cy), lay, **_look(Layer.FRAME))
+        elif key == "grid":
             pen.line((x0, cy), (x1, cy), lay, **_look(Layer.GRID))
+        elif key in {"cw", "acw", "crit"}:
+            # the curl of a rising tie on a rising line, of a falling tie on a falling line
+            slope = -1.0 if key == "acw" else 1.0
+            rise = (top - bottom) / 2 - 0.2
+            pen.line((x0 + 2, cy - slope * rise), (x1 - 2, cy + slope * rise), lay,
+                     **_look(member_layer(brace=key == "crit", existing=False)))  # fmt: skip
+            block = {"cw": TIE_CW_BLOCK, "acw": TIE_ACW_BLOCK, "crit": CRITICAL_BLOCK}[key]
+            pen.block(block, mid, cy, lay, **_look(Layer.CRITICAL if key == "crit" else Layer.TIE_SENSE))
+        elif key == "blocked":
+            _hatch_rect(pen, x0, bottom, x1 - x0, top - bottom, Layer.OPENING_PATT, pattern=True)
+            half = text_width(BLOCKED_LABEL, H_SMALL) / 2 + 0.6
+            mask = pen.msp.add_wipeout([pen.at(mid - half, bottom + 0.3), pen.at(mid + half, top - 0.3)])
+            mask.dxf.layer = lay.layer_name
+            pen.text(BLOCKED_LABEL, mid, cy, height=H_SMALL, layer=lay, align="MIDDLE_CENTER")
+        elif key == "hatched":
+            _hatch_rect(pen, x0, bottom, x1 - x0, top - bottom, Layer.OPENING_PATT, pattern=True)
+        elif key == "opening":
+            pen.rect(x0, bottom, x1 - x0, top - bottom, lay, **_look(Layer.OPENING))
+        elif key == "loose":
+            _hatch_rect(pen, x0, bottom, x1 - x0, top - bottom, Layer.LOOSE, pattern=False)
+        elif key == "tag":
+            pen.text("M1", mid, cy, height=H_SMALL, layer=lay, align="MIDDLE_CENTER", color=Layer.LOOSE.spec.color)
+        elif key == "support":
+            pen.line((x0, cy + 1.6), (x1, cy + 1.6), lay, **_look(Layer.SUPPORT))
+            pen.block(SUPPORT_BLOCK, mid, cy + 1.6, lay, **_look(Layer.SUPPORT_SYMBOL))
+        else:  # bay tag
+            pen.block(BAY_TAG_BLOCK, mid, cy, lay, **_look(Layer.GRID_LABEL))
+            pen.text("R1", mid, cy, height=H_SMALL, layer=lay, align="MIDDLE_CENTER")
         pen.text(words, x1 + 3, cy, height=H_SMALL, layer=lay, align="MIDDLE_LEFT")
         cy -= step / 2
 
@@ -290,64 +346,106 @@ def add_hatch(
     pattern: bool,
     color: int = 256,
 ) -> None:
-    """A hatch over a polygon (model points): 45-degree lines, or a pale fill."""
+    """A hatch over a polygon (model points): our 45-degree blocked-bay pattern, or a pale fill."""
+    hatch = msp.add_hatch(color=color, dxfattribs={"layer": layer.layer_name})
     if pattern:
-        hatch = msp.add_hatch(color=color, dxfattribs={"layer": layer.layer_name})
-        hatch.set_pattern_fill("ANSI31", scale=0.55 * scale, color=color)
+        # pattern type 2 (custom): the definition travels inside the hatch, named as ours
+        hatch.set_pattern_fill(BLOCKED_PATTERN, color=color, pattern_type=2, definition=blocked_pattern(scale))
     else:
-        hatch = msp.add_hatch(color=color, dxfattribs={"layer": layer.layer_name})
         hatch.rgb = (255, 226, 190)  # light: prints as a pale grey in black and white
     hatch.paths.add_polyline_path(points, is_closed=True)
 
 
 # --------------------------------------------------------------------------- bill table
 
+#: The sheet's bill columns: name, width (paper mm), alignment.
 _COLS: tuple[tuple[str, float, str], ...] = (
     ("frame", 30.0, "LEFT"),
-    ("member", 15.0, "LEFT"),
-    ("status", 17.0, "LEFT"),
-    ("no.", 8.0, "RIGHT"),
-    ("cut each", 16.0, "RIGHT"),
-    ("length", 17.0, "RIGHT"),
-    ("cost", 17.0, "RIGHT"),
+    (MEMBER, 13.0, "LEFT"),
+    (STATUS, 19.0, "LEFT"),
+    (COUNT, 9.0, "RIGHT"),
+    (CUT_EACH, 21.0, "RIGHT"),
+    (LENGTH, 18.0, "RIGHT"),
+    (COST, 19.0, "RIGHT"),
 )
 _ROW = 3.7
 
 
-def _bill_rows(bom: Bom) -> list[tuple[list[str], bool]]:
-    rows: list[tuple[list[str], bool]] = []
+class BillRowKind(Enum):
+    """What a printed bill row is."""
 
-    def totals(label: str, t: BomTotals) -> list[str]:
-        counts = f"{t.braces}B {t.ties}T"
-        return [label, counts, f"{t.proposed} new", str(t.members), "", format_length_m(t.length_mm), f"{t.cost:,.2f}"]
+    HEAD = "head"
+    ITEM = "item"
+    FRAME_TOTAL = "frame total"
+    TOTAL = "total"
+    PROPOSED = "of which proposed"
+
+
+@dataclass(frozen=True, slots=True)
+class BillRow:
+    """One printed row of the sheet's bill.
+
+    Attributes:
+        kind: Head, item or a total.
+        cells: The texts of the seven columns; ``None`` merges a cell into the one on its left.
+    """
+
+    kind: BillRowKind
+    cells: tuple[str | None, ...]
+
+
+def bill_rows(bom: Bom) -> list[BillRow]:
+    """The sheet's bill, row by row, as printed (the header row first).
+
+    Items group members by kind, status and cut length; each frame total, the total and the
+    proposed-only total are sums of the item rows above them, in whole mm and cents.
+
+    Example:
+        >>> from bracegrid.model import Frame, Project
+        >>> from bracegrid.outputs.bill import build_bom
+        >>> [r.kind.value for r in bill_rows(build_bom(Project("p", (Frame("f", (3000,), (2000,)),))))]
+        ['head', 'item', 'total', 'of which proposed']
+    """
+    rows = [BillRow(BillRowKind.HEAD, tuple(c[0] for c in _COLS))]
+
+    def totals(kind: BillRowKind, label: str, t: BomTotals) -> BillRow:
+        return BillRow(kind, (label, counts_words(t.braces, t.ties), None, str(t.members), "",
+                              metres_text(t.length_mm), money_text(t.cost_cents)))  # fmt: skip
 
     for fb in bom.frames:
         first = True
         for g in fb.groups:
-            name = fb.frame if first else ""
-            first = False
             rows.append(
-                (
-                    [
-                        name,
+                BillRow(
+                    BillRowKind.ITEM,
+                    (
+                        fb.frame if first else "",
                         g.kind.value,
                         "existing" if g.existing else "proposed",
                         str(g.count),
-                        f"{g.cut_length_mm} mm",
-                        format_length_m(g.count * g.cut_length_mm),
-                        f"{g.cost:,.2f}",
-                    ],
-                    False,
+                        str(g.cut_length_mm),
+                        metres_text(g.length_mm),
+                        money_text(g.cost_cents),
+                    ),
                 )
             )
+            first = False
         if first:
-            rows.append(([fb.frame, "none", "", "0", "", "", ""], False))
+            rows.append(BillRow(BillRowKind.ITEM, (fb.frame, "none", "", "0", "", metres_text(0), money_text(0))))
         if len(bom.frames) > 1:
-            rows.append((totals("  frame total", fb.totals), True))
-    rows.append((totals("TOTAL", bom.totals), True))
+            rows.append(totals(BillRowKind.FRAME_TOTAL, "  frame total", fb.totals))
     t = bom.totals
-    rows.append((["of which proposed", "", "", str(t.proposed), "", "", f"{t.proposed_cost:,.2f}"], True))
+    rows.append(totals(BillRowKind.TOTAL, "TOTAL", t))
+    proposed = ("of which proposed", counts_words(*_proposed_kinds(bom)), None, str(t.proposed), "", "")
+    rows.append(BillRow(BillRowKind.PROPOSED, (*proposed, money_text(t.proposed_cost_cents))))
     return rows
+
+
+def _proposed_kinds(bom: Bom) -> tuple[int, int]:
+    braces = sum(
+        1 for fb in bom.frames for x in fb.lines if not x.member.existing and x.member.kind is MemberKind.BRACE
+    )
+    return braces, bom.totals.proposed - braces
 
 
 def _fit(text: str, width: float) -> str:
@@ -360,7 +458,7 @@ def _fit(text: str, width: float) -> str:
 
 def bill_size(bom: Bom) -> tuple[float, float]:
     """Width and height of the bill table, paper mm."""
-    return (sum(c[1] for c in _COLS), 8.0 + _ROW * (len(_bill_rows(bom)) + 1))
+    return (sum(c[1] for c in _COLS), 8.0 + _ROW * len(bill_rows(bom)))
 
 
 def draw_bill(pen: Pen, bom: Bom, x: float, y: float) -> None:
@@ -371,15 +469,23 @@ def draw_bill(pen: Pen, bom: Bom, x: float, y: float) -> None:
     pen.text("BILL OF MATERIALS  (cut = node-to-node diagonal)", x + 2, y + h - 4.5, height=H_LABEL, layer=lay)
     top = y + h - 8.0
     pen.line((x, top), (x + w, top), lay)
-    rows = [([c[0] for c in _COLS], True), *_bill_rows(bom)]
-    for k, (cells, strong) in enumerate(rows):
+    for k, row in enumerate(bill_rows(bom)):
         base = top - (k + 1) * _ROW
         cx = x
-        for (_, cw, align), cell in zip(_COLS, cells, strict=True):
-            tx = cx + 1.0 if align == "LEFT" else cx + cw - 1.0
-            pen.text(_fit(cell, cw), tx, base + 1.0, height=H_SMALL, layer=lay, align=f"BOTTOM_{align}")
+        cells = list(row.cells)
+        for i, (_, cw, align) in enumerate(_COLS):
+            cell = cells[i]
+            if cell is not None:
+                span = cw
+                for j in range(i + 1, len(_COLS)):
+                    if cells[j] is not None:
+                        break
+                    span += _COLS[j][1]
+                tx = cx + 1.0 if align == "LEFT" else cx + cw - 1.0
+                if cell:
+                    pen.text(_fit(cell, span), tx, base + 0.8, height=H_SMALL, layer=lay, align=f"BOTTOM_{align}")
             cx += cw
-        if k == 0 or strong:
+        if row.kind is not BillRowKind.ITEM:
             pen.line((x, base + _ROW), (x + w, base + _ROW), lay)
 
 
@@ -417,7 +523,7 @@ def draw_title(
     lines = [
         _fit_width(f"Frames: {shown}", w - 4, H_SMALL),
         f"Date: {when.isoformat()}    Scale 1:{scale} on {sheet}    Lengths in mm",
-        f"Drawn by bracegrid {version}; layers, symbols and columns: docs/drawings.md",
+        f"Drawn by bracegrid {version}; symbols as in the legend",
     ]
     for k, line in enumerate(lines):
         pen.text(line, x + 2, row - 7.0 - k * 4.0, height=H_SMALL, layer=lay)

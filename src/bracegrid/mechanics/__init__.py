@@ -1,0 +1,48 @@
+"""The mechanics stage: the real bar framework, direct stiffness, tension-only ties, member forces."""
+
+from bracegrid.mechanics.forces import LayoutModel, analyse_frame, analyse_project, envelope, prepare_layout
+from bracegrid.mechanics.framework import BarFramework, BarKind, GridBarRef, build_framework, missing_stiffness
+from bracegrid.mechanics.loading import nodal_loads, tributary_shares
+from bracegrid.mechanics.motions import FreeMotions, driven_motion, free_motions
+from bracegrid.mechanics.results import (
+    MODEL_LIMITS,
+    CaseForces,
+    CaseOutcome,
+    EnvelopeEntry,
+    FrameForces,
+    Mechanism,
+    MechanismKind,
+    MemberForce,
+    Reaction,
+)
+from bracegrid.mechanics.tension import Equilibrium, exact_step, solve_tension_only
+
+__all__ = [
+    "MODEL_LIMITS",
+    "BarFramework",
+    "BarKind",
+    "CaseForces",
+    "CaseOutcome",
+    "EnvelopeEntry",
+    "Equilibrium",
+    "FrameForces",
+    "FreeMotions",
+    "GridBarRef",
+    "LayoutModel",
+    "Mechanism",
+    "MechanismKind",
+    "MemberForce",
+    "Reaction",
+    "analyse_frame",
+    "analyse_project",
+    "build_framework",
+    "driven_motion",
+    "envelope",
+    "exact_step",
+    "free_motions",
+    "missing_stiffness",
+    "nodal_loads",
+    "prepare_layout",
+    "solve_tension_only",
+    "tributary_shares",
+]
