@@ -284,7 +284,10 @@ def run_case(label: str, text: str, folder: Path, tally: Tally, *, heavy: bool) 
         written = folder / "written.toml"
         written.unlink(missing_ok=True)
         commands.append(
-            ("optimize", ["optimize", str(path), "--json", "--time-limit", "2", "--workers", "1", "--write", str(written)])
+            (
+                "optimize",
+                ["optimize", str(path), "--json", "--time-limit", "2", "--workers", "1", "--write", str(written)],
+            )
         )
         commands.append(("draw", ["draw", str(path), "--format", "dxf", "--out", str(folder / "drawn")]))
     for name, argv in commands:
@@ -326,21 +329,29 @@ def run_fuzz(count: int, seed: int = 0, *, heavy_every: int = 2) -> Tally:
     return tally
 
 
-_UNSTABLE = _HEAD + """
+_UNSTABLE = (
+    _HEAD
+    + """
 [[frame]]
 name = "loose été"
 widths = [3.0, 3.0]
 heights = [2.0]
 """
+)
 
 
 def misuse_commands(folder: Path) -> list[tuple[str, list[str], dict[str, str], str]]:
     """(label, argv after ``python -m bracegrid``, extra environment, shell redirection) of each misuse."""
     good = folder / "good.toml"
-    good.write_text(_UNSTABLE.replace("heights = [2.0]", "heights = [2.0]\nsupports = \"base\"\n"
-                                      "[[frame.member]]\nrow = 1\ncol = 1\nkind = \"brace\"\ndiagonal = \"rising\"\n"
-                                      "[[frame.member]]\nrow = 1\ncol = 2\nkind = \"brace\"\ndiagonal = \"rising\"\n"),
-                    encoding="utf-8")
+    good.write_text(
+        _UNSTABLE.replace(
+            "heights = [2.0]",
+            'heights = [2.0]\nsupports = "base"\n'
+            '[[frame.member]]\nrow = 1\ncol = 1\nkind = "brace"\ndiagonal = "rising"\n'
+            '[[frame.member]]\nrow = 1\ncol = 2\nkind = "brace"\ndiagonal = "rising"\n',
+        ),
+        encoding="utf-8",
+    )
     loose = folder / "loose.toml"
     loose.write_text(_UNSTABLE, encoding="utf-8")
     fifo = folder / "fifo.toml"

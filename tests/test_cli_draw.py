@@ -46,12 +46,19 @@ def test_per_frame_and_frame_filter(tmp_path: Path) -> None:
     assert "STREET FACE" not in labels
 
 
-def test_default_folder_sits_next_to_the_project(tmp_path: Path) -> None:
-    project = tmp_path / "yard.toml"
+def test_default_folder_is_out_in_the_current_directory(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # Without --out nothing is written beside the input (here a "projects" folder), even with --per-frame.
+    source = tmp_path / "projects"
+    source.mkdir()
+    project = source / "yard.toml"
     project.write_text(ORCHARD.read_text(encoding="utf-8"), encoding="utf-8")
-    code, _, err = _run("draw", str(project), "--format", "dxf")
+    work = tmp_path / "work"
+    work.mkdir()
+    monkeypatch.chdir(work)
+    code, _, err = _run("draw", str(project), "--format", "dxf", "--per-frame")
     assert code == EXIT_OK, err
-    assert (tmp_path / "yard-drawings" / "yard.dxf").is_file()
+    assert (work / "out" / "yard-roof-plan.dxf").is_file()
+    assert [p.name for p in source.iterdir()] == ["yard.toml"]
 
 
 @pytest.mark.parametrize(

@@ -1,17 +1,29 @@
 """Command-line shell over the library. The only module that prints.
 
-Exit codes: 0 success (stable; for ``forces``: within capacity), 1 not stable (for
-``forces``: over capacity or a mechanism), 2 bad input, 3 proven infeasible, 4 solver limit
-reached with no layout, 70 internal error.
+Exit codes (:data:`EXIT_CODES`, printed by ``--help`` and listed in README.md): 0 success
+(stable; for ``forces``: within capacity), 1 not stable (for ``forces``: over capacity or a
+mechanism), 2 bad input (nothing written), 3 proven infeasible, 4 solver limit reached with no
+layout, 70 internal error, 74 the results could not be written to standard output, 130
+interrupted (SIGINT or SIGTERM; temporary files removed, earlier outputs as they were).
+
+Results are gathered in memory and written to standard output once the command is done, so a
+reader that stops early (``| head``) or a failing stream never changes the verdict's exit code
+and never leaves a traceback.
 """
 
 from __future__ import annotations
 
 import argparse
+import contextlib
+import io
 import json
+import os
+import re
+import signal
 import sys
+import threading
 import webbrowser
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from datetime import date
 from pathlib import Path
 from typing import Any, TextIO, TypeVar
@@ -33,10 +45,13 @@ from bracegrid.compare import COMPARE_SAMPLES, StrategyKey, StrategyRobustness, 
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
     MEMBER_REF_HELP,
+    MOVING,
     OutputFile,
+    check_out_file,
     check_out_folder,
     load_project,
     parse_member_refs,
+    remove_temporaries,
     save_project,
     write_outputs,
 )
@@ -84,6 +99,34 @@ EXIT_INPUT = 2
 EXIT_INFEASIBLE = 3
 EXIT_LIMIT = 4
 EXIT_INTERNAL = 70
+EXIT_IO = 74  # sysexits.h EX_IOERR
+EXIT_INTERRUPTED = 130  # 128 + SIGINT, as shells report it
+
+#: Every exit code and its meaning (``--help`` and README.md print the same list).
+EXIT_CODES: tuple[tuple[int, str], ...] = (
+    (EXIT_OK, "stable / done (forces: every member within capacity)"),
+    (EXIT_UNSTABLE, "not stable (forces: over capacity, or a load case finds a mechanism)"),
+    (EXIT_INPUT, "bad input or an output that cannot be written; nothing written"),
+    (EXIT_INFEASIBLE, "proven infeasible, with the reason"),
+    (EXIT_LIMIT, "solver limit reached before any layout"),
+    (EXIT_INTERNAL, "internal error (a bracegrid bug)"),
+    (EXIT_IO, "the results could not be written to standard output"),
+    (EXIT_INTERRUPTED, "interrupted (Ctrl-C or SIGTERM); temporary files removed"),
+)
+
+#: CP-SAT's random_seed is a 32-bit signed integer; numpy seeds must not be negative.
+SEED_MAX = 2**31 - 1
+
+#: Seconds the main thread gets to stop by itself after a signal before the process ends anyway
+#: (it may be inside a C++ solve that does not return to Python until its own time is up).
+_GRACE_S = 1.5
+
+#: Where outputs go without --out: a folder in the current directory, never beside the input file.
+DEFAULT_OUT = Path("out")
+
+# C0 and C1 control characters except the newline, and the bidirectional overrides: escaped in
+# terminal text so a name cannot move the cursor, ring, erase or reorder what the table shows.
+_UNSAFE = re.compile("[\x00-\x09\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
 
 #: How each error is labelled on stderr and which exit code it gives (first match wins).
 _EXIT_FOR: tuple[tuple[type[BraceGridError], str, int], ...] = (
@@ -164,9 +207,7 @@ def _cmd_draw(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     source = Path(args.project)
-    folder = _flagged(
-        "--out", lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-drawings"))
-    )
+    folder = _flagged("--out", lambda: check_out_folder(DEFAULT_OUT if args.out is None else args.out))
     sheets, files = render_outputs(
         project, stem=source.stem, frames=frames, formats=formats, per_frame=args.per_frame, when=date.today()
     )
@@ -197,7 +238,7 @@ def _cmd_forces(args: argparse.Namespace, out: TextIO) -> int:
             "(see docs/project-file.md)"
         )
         raise InputError(msg)
-    folder = _flagged("--out", lambda: check_out_folder(Path(args.out))) if args.out else None
+    folder = _flagged("--out", lambda: check_out_folder(args.out)) if args.out is not None else None
     cases = [args.case] if args.case is not None else None
     results: list[FrameForces] = [analyse_frame(f, project.strength, cases=cases) for f in frames]
     written: tuple[Path, ...] = ()
@@ -238,6 +279,7 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     if problems:
         raise InputError(problems)
     project = load_project(args.project)
+    write_to = _flagged("--write", lambda: check_out_file(args.write)) if args.write is not None else None
     frames = _frames(project, args.frame)
     target = _without_frame(project, args)
     without = (
@@ -270,25 +312,35 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     if live is not None:
         live.write("\r\033[K")
         live.flush()
-    if args.write:
-        save_project(solution.project, args.write)
+    if write_to is not None:
+        save_project(solution.project, write_to)
     if args.json:
         _emit(out, optimize_dict(solution))
     else:
         out.write(render_optimize(project.name, solution))
-        if args.write:
-            out.write(f"Wrote {args.write}\n")
+        if write_to is not None:
+            out.write(f"Wrote {write_to}\n")
     return EXIT_OK
 
 
 def _solver_problems(args: argparse.Namespace) -> list[str]:
     """What is wrong with --time-limit and --workers (shared by optimize and compare)."""
-    problems = []
+    problems = _seed_problems(args)
     if not args.time_limit > 0:
         problems.append(f"--time-limit {args.time_limit}: give a positive number of seconds")
-    if args.workers < 1:
-        problems.append(f"--workers {args.workers}: give at least 1")
+    if not 1 <= args.workers <= _MAX_WORKERS:
+        problems.append(f"--workers {args.workers}: give at least 1 (at most {_MAX_WORKERS})")
     return problems
+
+
+_MAX_WORKERS = 256
+_MAX_SAMPLES = 100_000_000
+
+
+def _seed_problems(args: argparse.Namespace) -> list[str]:
+    if not 0 <= args.seed <= SEED_MAX:
+        return [f"--seed {args.seed}: give a whole number from 0 to {SEED_MAX}"]
+    return []
 
 
 def _add_solver_options(p: argparse.ArgumentParser, *, per: str, whole: str) -> None:
@@ -307,13 +359,13 @@ def _progress() -> Progress:
 
 
 def _robustness_problems(args: argparse.Namespace) -> list[str]:
-    problems = []
+    problems = _seed_problems(args)
     if args.max_lost < 1:
         problems.append(f"--max-lost {args.max_lost}: give at least 1 member")
-    if args.samples < 1:
-        problems.append(f"--samples {args.samples}: give at least 1 Monte Carlo sample")
-    if args.workers < 1:
-        problems.append(f"--workers {args.workers}: give at least 1 process")
+    if not 1 <= args.samples <= _MAX_SAMPLES:
+        problems.append(f"--samples {args.samples}: give at least 1 Monte Carlo sample (at most {_MAX_SAMPLES})")
+    if not 1 <= args.workers <= _MAX_WORKERS:
+        problems.append(f"--workers {args.workers}: give at least 1 process (at most {_MAX_WORKERS})")
     return problems
 
 
@@ -324,10 +376,7 @@ def _cmd_robustness(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     source = Path(args.project)
-    folder = _flagged(
-        "--out",
-        lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-robustness")),
-    )
+    folder = _flagged("--out", lambda: check_out_folder(DEFAULT_OUT if args.out is None else args.out))
     options = RobustnessOptions(max_lost=args.max_lost, samples=args.samples, seed=args.seed, workers=args.workers)
     with _progress() as progress:
         task = progress.add_task("robustness", total=None)
@@ -354,15 +403,15 @@ def _cmd_robustness(args: argparse.Namespace, out: TextIO) -> int:
 
 def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     problems = _solver_problems(args)
-    if args.samples < 0:
-        problems.append(f"--samples {args.samples}: give 0 (no robustness curves) or more")
+    if not 0 <= args.samples <= _MAX_SAMPLES:
+        problems.append(f"--samples {args.samples}: give 0 (no robustness curves) to {_MAX_SAMPLES}")
     if problems:
         raise InputError(problems)
     project = load_project(args.project)
     frames = _frames(project, args.frame)
     source = Path(args.project)
     folder = _flagged(
-        "--out", lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-compare"))
+        "--out", lambda: check_out_folder(DEFAULT_OUT / f"{source.stem}-compare" if args.out is None else args.out)
     )
     options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
     total = len(frames) * len(StrategyKey)
@@ -438,8 +487,8 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="bracegrid",
         description="Lay out and check diagonal bracing of rectangular pin-jointed frames.",
-        epilog="Exit codes: 0 stable/success, 1 not stable, 2 bad input, 3 infeasible, "
-        "4 solver limit without a layout.",
+        epilog="Outputs go where --out or --write says; without them, into out/ in the current directory "
+        "(never beside the project file). Exit codes: " + "; ".join(f"{c} {what}" for c, what in EXIT_CODES) + ".",
     )
     parser.add_argument("--version", action="version", version=f"bracegrid {__version__}")
     sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
@@ -467,7 +516,7 @@ def build_parser() -> argparse.ArgumentParser:
     draw.add_argument("--frame", metavar="NAME", help="only this frame (default: every frame)")
     draw.add_argument(
         "--out", metavar="DIR",
-        help="folder for the files (default: <project>-drawings next to the project file)",
+        help="folder for the files (default: out/ in the current directory)",
     )  # fmt: skip
     draw.add_argument(
         "--format", default="dxf,png", metavar="LIST",
@@ -527,7 +576,9 @@ def build_parser() -> argparse.ArgumentParser:
         cmp_, per="strategy's solve of each frame",
         whole="the whole run may take up to 5 x S x the number of frames, plus the drawing (seconds)",
     )  # fmt: skip
-    cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
+    cmp_.add_argument(
+        "--out", metavar="DIR", help="folder for the files (default: out/<project>-compare/ in the current directory)"
+    )
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")
     cmp_.add_argument(
         "--samples", type=int, default=COMPARE_SAMPLES, metavar="N",
@@ -556,7 +607,7 @@ def build_parser() -> argparse.ArgumentParser:
         "--workers", type=int, default=2, metavar="N",
         help="processes for large runs; the numbers do not depend on it (default 2)",
     )  # fmt: skip
-    rob.add_argument("--out", metavar="DIR", help="folder for the plot files (default: <project>-robustness)")
+    rob.add_argument("--out", metavar="DIR", help="folder for the plot files (default: out/ in the current directory)")
     rob.set_defaults(handler=_cmd_robustness)
 
     edit = sub.add_parser(
@@ -592,31 +643,157 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
         err: Where errors go (default: stderr).
 
     Returns:
-        The exit code.
+        The exit code (one of :data:`EXIT_CODES`).
     """
-    stdout = out or sys.stdout
-    stderr = err or sys.stderr
+    stdout = out if out is not None else sys.stdout
+    stderr = err if err is not None else sys.stderr
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # argparse: --help/--version exit 0, usage errors 2
         return int(exc.code or 0)
+    except (AttributeError, OSError):  # argparse printing --help or usage into a closed or failing stream
+        return EXIT_IO
+    if args.command == "edit":  # the URL must appear at once; the server handles its own signals
+        if stdout is None:
+            _say(stderr, "bracegrid: standard output is closed; the editor's URL could not be shown")
+            return EXIT_IO
+        return _run(args, stdout, stderr)
+    buffer = io.StringIO()
+    with _stop_on_signals(stderr):
+        try:
+            code = _run(args, buffer, stderr)
+            return _deliver(buffer.getvalue(), stdout, stderr, code, escape=not getattr(args, "json", False))
+        except KeyboardInterrupt:  # a signal while the results are being delivered
+            _say(stderr, "interrupted")
+            return EXIT_INTERRUPTED
+
+
+def _run(args: argparse.Namespace, out: TextIO, stderr: TextIO | None) -> int:
     handler: Handler = args.handler
     try:
-        return handler(args, stdout)
+        return handler(args, out)
     except BraceGridError as exc:
         label, code = next((lab, c) for kind, lab, c in _EXIT_FOR if isinstance(exc, kind))
         hint = "; give it more seconds with --time-limit" if isinstance(exc, SolverLimitError) else ""
-        stderr.write(f"{label}: {exc}{hint}\n")
+        _say(stderr, f"{label}: {exc}{hint}")
         return code
     except KeyboardInterrupt:
-        stderr.write("interrupted\n")
-        return 130
-    except BrokenPipeError:  # output piped into e.g. `head`, which stopped reading
+        remove_temporaries()
+        _say(stderr, "interrupted")
+        return EXIT_INTERRUPTED
+    except BrokenPipeError:  # the editor's output piped into a reader that stopped
         return EXIT_OK
     except Exception as exc:
-        stderr.write(
+        _say(
+            stderr,
             f"internal error ({type(exc).__name__}: {exc}). This is a bracegrid bug; "
-            "please report it with the project file.\n"
+            "please report it with the project file.",
         )
         return EXIT_INTERNAL
+
+
+def terminal_text(text: str) -> str:
+    r"""Text for a terminal: control characters (but the newline) and bidirectional overrides escaped.
+
+    Example:
+        >>> terminal_text("frame \x1b[31mred\x00\n")
+        'frame \\x1b[31mred\\x00\n'
+    """
+    return _UNSAFE.sub(lambda m: m.group().encode("unicode_escape").decode("ascii"), text)
+
+
+def _say(stream: TextIO | None, message: str) -> None:
+    """One line on stderr, if stderr can take it (a closed or failing stderr never changes the exit code)."""
+    if stream is None:
+        return
+    with contextlib.suppress(OSError, ValueError, AttributeError):
+        stream.write(terminal_text(message) + "\n")
+        stream.flush()
+
+
+def _silence(stream: TextIO) -> None:
+    """Point a failed stream's descriptor at /dev/null so the interpreter's exit flush stays quiet."""
+    with contextlib.suppress(OSError, ValueError, AttributeError, io.UnsupportedOperation):
+        fd = stream.fileno()
+        null = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(null, fd)
+        os.close(null)
+
+
+def _deliver(text: str, stdout: TextIO | None, stderr: TextIO | None, code: int, *, escape: bool) -> int:
+    """Write the results; a reader that went away keeps ``code``, a failing stream gives :data:`EXIT_IO`."""
+    if not text:
+        return code
+    if stdout is None:
+        _say(stderr, f"bracegrid: standard output is closed; the results were not shown (exit {EXIT_IO})")
+        return EXIT_IO
+    shown = terminal_text(text) if escape else text
+    try:
+        try:
+            stdout.write(shown)
+        except UnicodeEncodeError:  # e.g. PYTHONIOENCODING=ascii: names the stream cannot hold are escaped
+            encoding = getattr(stdout, "encoding", None) or "ascii"
+            stdout.write(shown.encode(encoding, "backslashreplace").decode(encoding))
+        stdout.flush()
+    except BrokenPipeError:  # `| head`, `| true`: the reader stopped; the verdict still counts
+        _silence(stdout)
+        return code
+    except (OSError, ValueError) as exc:  # a full disk, a closed file
+        reason = exc.strerror if isinstance(exc, OSError) and exc.strerror else str(exc)
+        _say(stderr, f"bracegrid: cannot write the results to standard output ({reason}); exit {EXIT_IO}")
+        _silence(stdout)
+        return EXIT_IO
+    return code
+
+
+@contextlib.contextmanager
+def _stop_on_signals(stderr: TextIO | None) -> Iterator[None]:
+    """SIGINT and SIGTERM raise KeyboardInterrupt; if the main thread cannot act on it soon, end the process.
+
+    The main thread may be inside a C++ solve that returns to Python only at its own time limit.
+    A watcher thread wakes on every signal (through the wakeup descriptor the interpreter writes to
+    from its C handler), gives the main thread :data:`_GRACE_S` to stop by itself, then waits for
+    any set of files being moved into place (:data:`~bracegrid.io.MOVING`), removes the temporary
+    files, says "interrupted" and exits 130.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def interrupt(signum: int, frame: object) -> None:
+        raise KeyboardInterrupt
+
+    read_fd, write_fd = os.pipe()
+    os.set_blocking(write_fd, False)
+    finished = threading.Event()
+    watcher = threading.Thread(target=_watch, args=(read_fd, finished, stderr), name="signal-watch", daemon=True)
+    old = {sig: signal.signal(sig, interrupt) for sig in (signal.SIGINT, signal.SIGTERM)}
+    old_fd = signal.set_wakeup_fd(write_fd, warn_on_full_buffer=False)
+    watcher.start()
+    try:
+        yield
+    finally:
+        finished.set()
+        signal.set_wakeup_fd(old_fd)
+        for sig, handler in old.items():
+            signal.signal(sig, handler)
+        os.close(write_fd)
+        watcher.join(timeout=1.0)
+        os.close(read_fd)
+
+
+def _watch(read_fd: int, finished: threading.Event, stderr: TextIO | None) -> None:
+    while True:
+        try:
+            got = os.read(read_fd, 64)
+        except OSError:
+            return
+        if not got or finished.wait(_GRACE_S):
+            return
+        with MOVING:
+            if finished.is_set():
+                return
+            remove_temporaries()
+            _say(stderr, "interrupted")
+            os._exit(EXIT_INTERRUPTED)

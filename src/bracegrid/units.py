@@ -24,6 +24,15 @@ MM_PER_UNIT: dict[str, float] = {
 #: DXF ``$INSUNITS`` codes (DXF reference, HEADER section) for the units we write.
 DXF_INSUNITS: dict[str, int] = {"in": 1, "ft": 2, "mm": 4, "cm": 5, "m": 6}
 
+#: Largest size of one bay (a width or a height): 1 km. No frame has a bay this big; the bound keeps
+#: every later product (diagonal lengths, areas, prices per metre) far from overflow.
+MAX_BAY_MM = 1_000_000
+
+#: Largest distance from the frame's corner any length or coordinate may have: 100 km (a frame of a
+#: hundred 1 km bays). Larger numbers (1e308 m, 9223372036854775807) are typing mistakes; they
+#: would overflow to infinity in millimetres or lose exactness in shapely's float geometry.
+MAX_LENGTH_MM = 100_000_000
+
 _QUANTITY = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([a-zA-Z]*)\s*$")
 
 
@@ -38,7 +47,8 @@ def parse_length(value: object, *, unit: str = "m") -> int:
         The length rounded to the nearest millimetre.
 
     Raises:
-        ValueError: If the value is not a finite length in a known unit.
+        ValueError: If the value is not a finite length in a known unit, or is more than
+            :data:`MAX_LENGTH_MM` (100 km) either side of zero.
 
     Example:
         >>> parse_length(2.4)
@@ -67,7 +77,11 @@ def parse_length(value: object, *, unit: str = "m") -> int:
     if not math.isfinite(number):
         msg = f"length {value!r} is not finite"
         raise ValueError(msg)
-    return round(number * MM_PER_UNIT[name])
+    mm = number * MM_PER_UNIT[name]
+    if not abs(mm) <= MAX_LENGTH_MM:
+        msg = f"length {value!r} is out of range; lengths run up to {MAX_LENGTH_MM // 1_000_000} km"
+        raise ValueError(msg)
+    return round(mm)
 
 
 def length_in_unit(length_mm: int, unit: str) -> float | int:

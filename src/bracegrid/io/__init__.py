@@ -1,26 +1,33 @@
 """The input/output stage: project files read and written, member references, atomic writes."""
 
 from bracegrid.io.atomic import (
+    MOVING,
     OutputFile,
+    check_out_file,
     check_out_folder,
+    remove_temporaries,
     replace_with_backup,
     write_atomic,
     write_bytes_atomic,
     write_outputs,
     write_text_atomic,
 )
-from bracegrid.io.reading import load_project, parse_project, project_from_data
+from bracegrid.io.reading import load_project, parse_project, project_from_data, read_project_text
 from bracegrid.io.refs import MEMBER_REF_HELP, parse_member_refs
 from bracegrid.io.writing import render_project, save_project
 
 __all__ = [
     "MEMBER_REF_HELP",
+    "MOVING",
     "OutputFile",
+    "check_out_file",
     "check_out_folder",
     "load_project",
     "parse_member_refs",
     "parse_project",
     "project_from_data",
+    "read_project_text",
+    "remove_temporaries",
     "render_project",
     "replace_with_backup",
     "save_project",

@@ -10,13 +10,18 @@ from __future__ import annotations
 
 import difflib
 import math
+import os
 import re
+import stat
 import tomllib
+import warnings
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, TypeVar
 
+import tomlkit
+import tomlkit.exceptions
 from shapely.geometry import box
 from shapely.validation import explain_validity
 
@@ -25,6 +30,9 @@ from bracegrid.errors import InputError
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import read_robustness
 from bracegrid.model import (
+    MAX_CONTINGENCY_PCT,
+    MAX_LAYOUT_PRICE,
+    MAX_RATE,
     CostCatalogue,
     CostRate,
     Diagonal,
@@ -37,7 +45,7 @@ from bracegrid.model import (
     blocked_bays,
     opening_polygon,
 )
-from bracegrid.units import MM_PER_UNIT, parse_length
+from bracegrid.units import MAX_BAY_MM, MAX_LENGTH_MM, MM_PER_UNIT, cut_length_mm, parse_length
 
 _PROJECT_KEYS = {"name", "length_unit"}
 _COST_KEYS = {*(k.value for k in MemberKind), "contingency_pct"}
@@ -50,6 +58,18 @@ _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
 _E = TypeVar("_E", MemberKind, Diagonal, Supports)
+
+#: Largest ``redundancy`` (members a layout must survive losing); far above what any frame reaches.
+MAX_REDUNDANCY = 1000
+
+#: Largest project file read (bytes): the biggest demo is a few kB; a 3000 x 3000 frame with every member
+#: listed as a [[frame.member]] table would need far more, but such frames are given without members.
+MAX_FILE_BYTES = 16 * 1024 * 1024
+
+#: Deepest nesting of arrays and inline tables a project file may use: valid files need 3
+#: (``point = [[...], ...]`` inside a table); the bound is checked on the text before any parser
+#: walks it, so a file nested thousands deep is refused in words, not with a RecursionError.
+MAX_NESTING = 16
 
 
 @dataclass(slots=True)
@@ -98,16 +118,21 @@ class _Collector:
                 hint = f"; did you mean {guess[0]!r}?" if guess else f"; known fields: {', '.join(sorted(known))}"
                 self.add(where, f"unknown field {key!r}{hint}")
 
-    def number(self, where: str, value: object, *, minimum: float = 0.0, integer: bool = False) -> float | None:
+    def number(
+        self, where: str, value: object, *, minimum: float = 0.0, maximum: float, integer: bool = False
+    ) -> float | None:
+        """A number in ``minimum..maximum`` (every number field has a documented range), or None."""
         ok = isinstance(value, int) if integer else isinstance(value, int | float)
-        if isinstance(value, bool) or not ok or not math.isfinite(float(value)):  # type: ignore[arg-type]
+        if isinstance(value, bool) or not ok:
             kind = "a whole number" if integer else "a number"
             self.add(where, f"expected {kind}, got {value!r}")
             return None
-        if float(value) < minimum:  # type: ignore[arg-type]
-            self.add(where, f"must be at least {minimum:g}, got {value!r}")
+        assert isinstance(value, int | float)
+        # Compare before converting: a huge integer (9223372036854775807 and beyond) stays exact.
+        if not (isinstance(value, int) or math.isfinite(value)) or not minimum <= value <= maximum:
+            self.add(where, f"{value!r} is out of range; give a value from {minimum:g} to {maximum:g}")
             return None
-        return float(value)  # type: ignore[arg-type]
+        return float(value)
 
     def table(self, where: str, value: object) -> Mapping[str, Any] | None:
         if not isinstance(value, dict):
@@ -122,6 +147,50 @@ class _Collector:
         return value
 
 
+def nesting_depth(text: str) -> tuple[int, int]:
+    """The deepest nesting of ``[`` and ``{`` outside strings and comments, and the line it is first reached on.
+
+    A plain scan of the characters (no recursion), so any text, however deep, is measured safely.
+    Table headers count too (``[[frame]]`` is 2 deep for a moment), which only makes it stricter.
+
+    Example:
+        >>> nesting_depth('a = [[1, "[[["], {b = [2]}]  # [[[[')
+        (2, 1)
+    """
+    depth = deepest = 0
+    line = deepest_line = 1
+    k, n = 0, len(text)
+    while k < n:
+        c = text[k]
+        if c == "\n":
+            line += 1
+        elif c == "#":
+            end = text.find("\n", k)
+            k = n if end < 0 else end
+            continue
+        elif c in "\"'":
+            triple = text.startswith(c * 3, k)
+            close = c * 3 if triple else c
+            j = k + len(close)
+            while j < n and not text.startswith(close, j):
+                if text[j] == "\\" and c == '"':
+                    j += 1
+                elif text[j] == "\n" and not triple:
+                    break
+                j += 1
+            line += text.count("\n", k, j)
+            k = j + len(close)
+            continue
+        elif c in "[{":
+            depth += 1
+            if depth > deepest:
+                deepest, deepest_line = depth, line
+        elif c in "]}":
+            depth = max(0, depth - 1)
+        k += 1
+    return deepest, deepest_line
+
+
 def _read_rate(col: _Collector, where: str, raw: object) -> CostRate | None:
     table = col.table(where, raw)
     if table is None:
@@ -132,10 +201,10 @@ def _read_rate(col: _Collector, where: str, raw: object) -> CostRate | None:
         if key not in table:
             col.add(where, f"missing field {key!r}; add e.g. `{key} = 10.0` (money)")
             continue
-        got = col.number(f"{where}.{key}", table[key])
+        got = col.number(f"{where}.{key}", table[key], maximum=MAX_RATE)
         if got is not None:
             values[key] = got
-    labour = col.number(f"{where}.labour_per_piece", table.get("labour_per_piece", 0.0))
+    labour = col.number(f"{where}.labour_per_piece", table.get("labour_per_piece", 0.0), maximum=MAX_RATE)
     if len(values) < 2 or labour is None:
         return None
     return CostRate(values["per_piece"], values["per_metre"], labour)
@@ -156,7 +225,7 @@ def _read_costs(col: _Collector, raw: object) -> CostCatalogue | None:
             rates[kind] = None
         else:
             rates[kind] = _read_rate(col, f"[costs.{kind}]", table[kind])
-    contingency = col.number("[costs].contingency_pct", table.get("contingency_pct", 0.0))
+    contingency = col.number("[costs].contingency_pct", table.get("contingency_pct", 0.0), maximum=MAX_CONTINGENCY_PCT)
     if contingency is None or any(r is None for r in rates.values()):
         return None
     return CostCatalogue(**rates, contingency_pct=contingency)  # type: ignore[arg-type]  # None ruled out above
@@ -173,11 +242,17 @@ def _read_sizes(col: _Collector, where: str, raw: object, unit: str) -> tuple[in
         except ValueError as exc:
             col.add(f"{where}[{k}]", str(exc))
             continue
-        if mm <= 0:
-            col.add(f"{where}[{k}]", f"size must be positive (at least 1 mm), got {item!r}")
+        if not 1 <= mm <= MAX_BAY_MM:
+            what = "size must be positive" if mm < 1 else "size is out of range"
+            col.add(f"{where}[{k}]", f"{what}: a bay size runs from 1 mm to 1 km, got {item!r}")
             continue
         out.append(mm)
-    return tuple(out) if len(out) == len(raw) else None
+    if len(out) != len(raw):
+        return None
+    if sum(out) > MAX_LENGTH_MM:
+        col.add(where, f"the sizes add up to {sum(out) / 1e6:g} km; a frame may be at most 100 km across")
+        return None
+    return tuple(out)
 
 
 def _read_bay(col: _Collector, where: str, raw: object, rows: int | None, cols: int | None) -> tuple[int, int] | None:
@@ -237,9 +312,18 @@ def _read_opening(
     if len(coords) != len(pts) or name is None:
         return None
     opening = Opening(name=name, polygon=tuple(coords))
-    poly = opening_polygon(opening)
-    if not poly.is_valid or poly.area <= 0:
-        reason = explain_validity(poly) if not poly.is_valid else "it has no area"
+    with warnings.catch_warnings(record=True) as caught:  # shapely's numeric warnings become problems
+        warnings.simplefilter("always")
+        poly = opening_polygon(opening)
+        valid, area = poly.is_valid, poly.area
+        reason = explain_validity(poly) if not valid else "it has no area"
+    if caught:
+        col.add(
+            f"{where}.polygon",
+            f"opening {name!r}: its geometry cannot be computed ({caught[0].message}); check the coordinates",
+        )
+        return None
+    if not valid or area <= 0:
         col.add(f"{where}.polygon", f"opening {name!r} is not a valid polygon ({reason}); list its corners in order")
         return None
     if frame_box is not None:
@@ -314,18 +398,22 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
             if bay is not None:
                 blocked.add(bay)
     allow: set[MemberKind] = set()
+    allow_ok = True
     raw_allow = table.get("allow", ["brace", "tie"])
     if not isinstance(raw_allow, list) or not raw_allow:
         col.add(f"{where}.allow", f'expected a non-empty list such as ["brace", "tie"], got {raw_allow!r}')
+        allow_ok = False
     else:
         for k, item in enumerate(raw_allow, start=1):
             kind = _read_enum(col, f"{where}.allow[{k}]", item, MemberKind)
-            if kind is not None:
-                allow.add(kind)
-    overlap = col.number(f"{where}.opening_overlap", table.get("opening_overlap", 0.0))
+            if kind is None:
+                allow_ok = False
+            else:
+                allow.add(kind)  # a kind named twice ("brace", "Brace") is the same kind: merged
+    overlap = col.number(f"{where}.opening_overlap", table.get("opening_overlap", 0.0), maximum=1.0)
     if overlap is not None and overlap >= 1.0:
         col.add(f"{where}.opening_overlap", f"must be a fraction below 1 (0 = any overlap blocks), got {overlap}")
-    redundancy = col.number(f"{where}.redundancy", table.get("redundancy", 0), integer=True)
+    redundancy = col.number(f"{where}.redundancy", table.get("redundancy", 0), maximum=MAX_REDUNDANCY, integer=True)
     frame_box = (sum(widths), sum(heights)) if widths and heights else None
     openings: list[Opening] = []
     for k, item in enumerate(_table_array(col, where, table, "opening")):
@@ -353,7 +441,7 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
         or overlap is None
         or overlap >= 1.0
         or redundancy is None
-        or len(allow) != len(raw_allow if isinstance(raw_allow, list) else [])
+        or not allow_ok
     ):
         return None
     frame = Frame(
@@ -370,6 +458,22 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     )
     _check_members(col, frame, member_where)
     return frame
+
+
+def _check_layout_price(col: _Collector, frame: Frame, costs: CostCatalogue | None) -> None:
+    """The dearest layout of the frame (both diagonals of every bay, dearest kind) must be priced exactly."""
+    if costs is None:
+        return
+    longest = cut_length_mm(max(frame.widths), max(frame.heights))
+    dearest = max(costs.member_price_cents(kind, longest) for kind in MemberKind) / 100
+    total = dearest * 2 * frame.rows * frame.cols
+    if total > MAX_LAYOUT_PRICE:
+        col.add(
+            f"frame {frame.name!r}",
+            f"the dearest layout would cost {total:.3g} (every bay braced both ways at {dearest:.3g} a member); "
+            f"prices and sizes must keep it below {MAX_LAYOUT_PRICE:.0e} so costs stay exact: check the units "
+            "of the prices in [costs] and of widths and heights",
+        )
 
 
 def _check_members(col: _Collector, frame: Frame, where: list[str]) -> None:
@@ -393,6 +497,25 @@ def _check_members(col: _Collector, frame: Frame, where: list[str]) -> None:
             )
         else:
             seen[key] = here
+
+
+def syntax_error_position(text: str, exc: tomllib.TOMLDecodeError) -> str:
+    """The standard library's message, with a line and column where it only says "at end of document".
+
+    tomlkit reads the same text with its own parser and names the line and column where it
+    stopped; its position is used only to place the message, never for the values.
+    """
+    message = str(exc)
+    if "end of document" not in message:
+        return message
+    try:
+        tomlkit.parse(text)
+    except tomlkit.exceptions.ParseError as err:
+        return f"{message.replace(' (at end of document)', '')} (line {err.line}, column {err.col})"
+    except Exception:  # tomlkit accepts or fails differently: keep the standard message
+        return message
+    lines = text.count("\n") + (0 if text.endswith("\n") else 1)
+    return f"{message.replace(' (at end of document)', '')} (at the end, line {lines})"
 
 
 def parse_project(text: str, *, source: str = "<string>") -> Project:
@@ -426,10 +549,17 @@ def parse_project(text: str, *, source: str = "<string>") -> Project:
         >>> p.frames[0].widths
         (3000, 3000)
     """
+    depth, line = nesting_depth(text)
+    if depth > MAX_NESTING:
+        msg = (
+            f"line {line}: arrays or inline tables nested {depth} deep; a project file needs at most "
+            f"{MAX_NESTING} levels of [ ] and {{ }}; check for a bracket left open"
+        )
+        raise InputError(msg, source=source)
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        msg = f"not valid TOML: {exc}; fix the syntax at that place"
+        msg = f"not valid TOML: {syntax_error_position(text, exc)}; fix the syntax at that place"
         raise InputError(msg, source=source) from None
     return project_from_data(data, source=source, text=text)
 
@@ -487,9 +617,13 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
         col.add("[[frame]]", "no frames; add at least one [[frame]] table with name, widths and heights")
         raw_frames = []
     for index, raw in enumerate(raw_frames):
+        before = len(col.problems)
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
             frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
+            _check_layout_price(col, got, costs)
+        elif len(col.problems) == before:  # never drop a frame without saying why
+            col.add(f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}", "could not be read; check its fields")
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
@@ -515,12 +649,53 @@ def load_project(path: str | Path) -> Project:
         InputError: If the file cannot be read or holds any problem.
     """
     p = Path(path)
+    return parse_project(read_project_text(p), source=str(p))
+
+
+def read_project_text(path: str | Path) -> str:
+    """The text of a project file, refusing anything that is not a regular file of at most :data:`MAX_FILE_BYTES`.
+
+    The file is opened without blocking (a FIFO with no writer would otherwise wait for ever) and
+    checked with ``fstat`` on the open descriptor before a byte is read; at most one byte more than
+    the limit is ever read, so ``/dev/zero`` or a growing file cannot fill the memory.
+
+    Raises:
+        InputError: If it is missing, not a regular file, too big, unreadable or not UTF-8.
+    """
+    p = Path(path)
+    if not str(path):
+        msg = "empty file name; give the path of a project file"
+        raise InputError(msg)
     try:
-        text = p.read_text(encoding="utf-8")
+        fd = os.open(p, os.O_RDONLY | os.O_NONBLOCK | getattr(os, "O_CLOEXEC", 0))
     except FileNotFoundError:
         msg = "file not found; check the path"
         raise InputError(msg, source=str(p)) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        msg = f"cannot read the file ({exc}); check it is a UTF-8 text file you may read"
+    except OSError as exc:
+        msg = f"cannot open the file ({exc.strerror or exc}); check it is a file you may read"
         raise InputError(msg, source=str(p)) from None
-    return parse_project(text, source=str(p))
+    try:
+        info = os.fstat(fd)
+        if not stat.S_ISREG(info.st_mode):
+            what = "a folder" if stat.S_ISDIR(info.st_mode) else "not a regular file (a device, pipe or socket)"
+            msg = f"is {what}; give the path of a project file (TOML)"
+            raise InputError(msg, source=str(p))
+        if info.st_size > MAX_FILE_BYTES:
+            msg = f"{info.st_size} bytes is too big for a project file (at most {MAX_FILE_BYTES} bytes)"
+            raise InputError(msg, source=str(p))
+        os.set_blocking(fd, True)
+        with os.fdopen(fd, "rb", closefd=False) as handle:
+            data = handle.read(MAX_FILE_BYTES + 1)
+    except OSError as exc:
+        msg = f"cannot read the file ({exc.strerror or exc}); check it is a file you may read"
+        raise InputError(msg, source=str(p)) from None
+    finally:
+        os.close(fd)
+    if len(data) > MAX_FILE_BYTES:
+        msg = f"grew beyond {MAX_FILE_BYTES} bytes while being read; give a finished project file"
+        raise InputError(msg, source=str(p))
+    try:
+        return data.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        msg = f"is not UTF-8 text (byte {exc.start + 1} cannot be read); save it as UTF-8"
+        raise InputError(msg, source=str(p)) from None

@@ -51,6 +51,12 @@ def parse_member_refs(frame: Frame, refs: Sequence[str]) -> tuple[Member, ...]:
         row, col = int(match.group(1)), int(match.group(2))
         side = (match.group(3) or "").lower()
         diagonal = {"r": Diagonal.RISING, "f": Diagonal.FALLING}.get(side[:1])
+        if not (1 <= row <= frame.rows and 1 <= col <= frame.cols):
+            problems.append(
+                f"{ref!r}: frame {frame.name!r} has no bay r{row}c{col}; it is {frame.cols} bays wide and "
+                f"{frame.rows} high (rows 1..{frame.rows} from the bottom, columns 1..{frame.cols} from the left)"
+            )
+            continue
         found = [m for m in frame.members if m.bay == (row, col) and (diagonal is None or m.diagonal is diagonal)]
         if not found:
             here = [m.label for m in frame.members if m.bay == (row, col)]

@@ -1,6 +1,6 @@
 """The model stage: frozen value types of frames, members, openings, supports, prices, loads, strengths, losses."""
 
-from bracegrid.model.costs import CostCatalogue, CostRate
+from bracegrid.model.costs import MAX_CONTINGENCY_PCT, MAX_LAYOUT_PRICE, MAX_RATE, CostCatalogue, CostRate
 from bracegrid.model.frame import Frame, Member, Opening, Project, layout_cost, layout_cost_cents, layout_length_mm
 from bracegrid.model.geometry import bay_box, bays_blocked_by, blocked_bays, opening_polygon
 from bracegrid.model.kinds import Diagonal, Edge, LoadSense, MemberKind, Racking, Supports
@@ -8,6 +8,9 @@ from bracegrid.model.loads import GridStrength, LoadCase, MemberStrength, Streng
 from bracegrid.model.losses import LossLikelihood
 
 __all__ = [
+    "MAX_CONTINGENCY_PCT",
+    "MAX_LAYOUT_PRICE",
+    "MAX_RATE",
     "CostCatalogue",
     "CostRate",
     "Diagonal",

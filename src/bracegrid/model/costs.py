@@ -7,6 +7,18 @@ from decimal import ROUND_HALF_UP, Decimal
 
 from bracegrid.model.kinds import MemberKind
 
+#: Largest price a project file may give per piece, per metre or for labour (money units). Far above any
+#: real rate; with :data:`MAX_CONTINGENCY_PCT` it keeps one member's price below 1.6e10.
+MAX_RATE = 1_000_000.0
+
+#: Largest contingency percentage.
+MAX_CONTINGENCY_PCT = 1000.0
+
+#: Largest price of the dearest layout of a frame (both diagonals of every bay at the dearest rate), in
+#: money units. The optimizer counts money in 1/10000 units (optimize/bays.py); 9e11 x 1e4 = 9e15 stays
+#: below 2**53, so every sum of member prices is exact in CP-SAT's integers and in a double.
+MAX_LAYOUT_PRICE = 900_000_000_000
+
 
 @dataclass(frozen=True, slots=True)
 class CostRate:

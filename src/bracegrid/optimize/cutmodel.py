@@ -331,6 +331,10 @@ def configure(params: object, *, workers: int, seed: int, seconds: float) -> Non
     p.num_workers = max(1, workers)
     p.random_seed = seed
     p.max_time_in_seconds = max(0.01, seconds)
+    # CP-SAT's own Ctrl-C handler would swallow the signal (the run then ends "early" with exit 0) and
+    # put the default handler back afterwards (a later Ctrl-C kills the process mid-write); the shells
+    # handle SIGINT themselves (cli.py: "interrupted", exit 130, temp files removed).
+    p.catch_sigint_signal = False
     p.linearization_level = 2
     if workers > 1:
         p.subsolvers.extend(["max_lp", "quick_restart"])
