@@ -634,13 +634,21 @@ def build_parser() -> argparse.ArgumentParser:
 Handler = Callable[[argparse.Namespace, TextIO], int]
 
 
-def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: TextIO | None = None) -> int:
+def main(
+    argv: Sequence[str] | None = None,
+    *,
+    out: TextIO | None = None,
+    err: TextIO | None = None,
+    signalled: Callable[[], bool] | None = None,
+) -> int:
     """Run the command line; return the exit code (never calls sys.exit).
 
     Args:
         argv: Arguments without the program name (default: sys.argv[1:]).
         out: Where results go (default: stdout).
         err: Where errors go (default: stderr).
+        signalled: Whether SIGINT or SIGTERM arrived before ``main`` took them over (the script
+            records them during start-up); then the run stops at once with exit 130.
 
     Returns:
         The exit code (one of :data:`EXIT_CODES`).
@@ -662,6 +670,8 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     buffer = io.StringIO()
     with _stop_on_signals(stderr):
         try:
+            if signalled is not None and signalled():
+                raise KeyboardInterrupt
             code = _run(args, buffer, stderr)
             return _deliver(buffer.getvalue(), stdout, stderr, code, escape=not getattr(args, "json", False))
         except KeyboardInterrupt:  # a signal while the results are being delivered

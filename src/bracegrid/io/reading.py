@@ -155,7 +155,7 @@ def nesting_depth(text: str) -> tuple[int, int]:
 
     Example:
         >>> nesting_depth('a = [[1, "[[["], {b = [2]}]  # [[[[')
-        (2, 1)
+        (3, 1)
     """
     depth = deepest = 0
     line = deepest_line = 1
