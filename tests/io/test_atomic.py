@@ -15,6 +15,7 @@ from typing import IO
 
 import pytest
 
+import bracegrid.io.atomic as atomic
 from bracegrid.errors import BraceGridError, ExportError
 from bracegrid.io import (
     OutputFile,
@@ -149,3 +150,68 @@ def test_write_outputs_into_a_file_path_writes_nothing(tmp_path: Path) -> None:
         write_outputs(a_file, [OutputFile("a.csv", b"x")])
     assert a_file.read_text(encoding="utf-8") == "keep me"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
+
+
+def _set(*names: str, data: bytes = b"new") -> list[OutputFile]:
+    return [OutputFile(n, data + n.encode()) for n in names]
+
+
+def test_a_set_into_a_new_folder_appears_in_one_rename(tmp_path: Path) -> None:
+    out = tmp_path / "fresh"
+    written = write_outputs(out, _set("a.csv", "b.dxf"))
+    assert written == (out / "a.csv", out / "b.dxf")
+    assert (out / "b.dxf").read_bytes() == b"newb.dxf"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["fresh"]  # no stage folder left
+
+
+def test_a_failed_move_leaves_the_old_set_whole(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    out = tmp_path / "o"
+    write_outputs(out, _set("a.csv", "b.dxf", "c.png", data=b"old"))
+    real = os.replace
+    calls = {"n": 0}
+
+    def flaky(src: str | os.PathLike[str], dst: str | os.PathLike[str]) -> None:
+        calls["n"] += 1
+        if calls["n"] == 4:  # a.csv swapped in, b.dxf's old copy set aside: then the disk fails
+            raise OSError(28, "No space left on device")
+        real(src, dst)
+
+    monkeypatch.setattr(os, "replace", flaky)
+    with pytest.raises(ExportError, match="nothing there was changed"):
+        write_outputs(out, _set("a.csv", "b.dxf", "c.png"))
+    monkeypatch.setattr(os, "replace", real)
+    assert {p.name: p.read_bytes() for p in out.iterdir()} == {
+        "a.csv": b"olda.csv",
+        "b.dxf": b"oldb.dxf",
+        "c.png": b"oldc.png",
+    }
+
+
+def test_an_interrupt_while_rendering_the_set_leaves_no_temporary(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    out = tmp_path / "o"
+    write_outputs(out, _set("a.csv", data=b"old"))
+
+    opened: list[str] = []
+
+    def interrupted_open(path: str, mode: str) -> IO[bytes]:
+        opened.append(path)
+        if len(opened) == 2:  # Ctrl-C while the second file of the set is being written
+            raise KeyboardInterrupt
+        return open(path, mode)  # the caller closes it
+
+    monkeypatch.setattr(atomic, "open", interrupted_open, raising=False)
+    with pytest.raises(KeyboardInterrupt):
+        write_outputs(out, _set("a.csv", "b.dxf"))
+    assert sorted(p.name for p in out.iterdir()) == ["a.csv"]
+    assert (out / "a.csv").read_bytes() == b"olda.csv"
+
+
+def test_folder_checks_happen_before_any_work(tmp_path: Path) -> None:
+    blocker = tmp_path / "file"
+    blocker.write_text("x", encoding="utf-8")
+    with pytest.raises(ExportError, match="is not a folder"):
+        check_out_folder(blocker / "deeper" / "still")
+    with pytest.raises(ExportError, match="empty folder name"):
+        check_out_folder("")
