@@ -224,3 +224,16 @@ def test_signal_stops_with_130_and_leaves_earlier_outputs(tmp_path: Path, sig: i
     assert err.strip().splitlines()[-1] == "interrupted"
     assert target.read_text(encoding="utf-8") == "# an earlier result\n"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["braced.toml", "slow.toml"]  # no .part files
+
+
+def test_optimize_write_keeps_the_users_comments_and_every_frame(tmp_path: Path) -> None:
+    source = ROOT / "projects" / "quayside-scaffold.toml"
+    target = tmp_path / "braced.toml"
+    code, _, err = run("optimize", str(source), "--time-limit", "10", "--workers", "1", "--write", str(target))
+    assert code == 0, err
+    text, new = source.read_text(encoding="utf-8"), target.read_text(encoding="utf-8")
+    comments = [line for line in text.splitlines() if line.lstrip().startswith("#")]
+    assert comments
+    assert all(c in new.splitlines() for c in comments)
+    assert new.count("[[frame]]") == text.count("[[frame]]")
+    assert new.count("[[frame.member]]") > text.count("[[frame.member]]")

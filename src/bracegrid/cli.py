@@ -51,6 +51,8 @@ from bracegrid.io import (
     check_out_folder,
     load_project,
     parse_member_refs,
+    parse_project,
+    read_project_text,
     remove_temporaries,
     save_project,
     write_outputs,
@@ -278,7 +280,8 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
         problems.append("--keep-clear only applies with --without MEMBER ...")
     if problems:
         raise InputError(problems)
-    project = load_project(args.project)
+    original = read_project_text(args.project)
+    project = parse_project(original, source=args.project)
     write_to = _flagged("--write", lambda: check_out_file(args.write)) if args.write is not None else None
     frames = _frames(project, args.frame)
     target = _without_frame(project, args)
@@ -313,7 +316,7 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
         live.write("\r\033[K")
         live.flush()
     if write_to is not None:
-        save_project(solution.project, write_to)
+        save_project(solution.project, write_to, original=original)  # the user's comments and layout kept
     if args.json:
         _emit(out, optimize_dict(solution))
     else:

@@ -14,7 +14,7 @@ from bracegrid.io.atomic import (
 )
 from bracegrid.io.reading import load_project, parse_project, project_from_data, read_project_text
 from bracegrid.io.refs import MEMBER_REF_HELP, parse_member_refs
-from bracegrid.io.writing import render_project, save_project
+from bracegrid.io.writing import render_project, save_project, update_project_text
 
 __all__ = [
     "MEMBER_REF_HELP",
@@ -31,6 +31,7 @@ __all__ = [
     "render_project",
     "replace_with_backup",
     "save_project",
+    "update_project_text",
     "write_atomic",
     "write_bytes_atomic",
     "write_outputs",

@@ -28,8 +28,8 @@ from bracegrid.io import (
     check_out_folder,
     parse_project,
     project_from_data,
-    render_project,
     replace_with_backup,
+    update_project_text,
     write_outputs,
 )
 from bracegrid.model import Frame, Project
@@ -289,8 +289,7 @@ class EditorSession:
 
     def _render(self, original: str, project: Project) -> str:
         """The text to write for a project, checked to read back as exactly that project."""
-        del original  # the style-preserving update is not on this branch: the plain writer is used
-        text = render_project(project)
+        text = update_project_text(original, project)  # the user's comments and layout are kept
         back = parse_project(text, source=self.file_name)
         if _normal(back) != _normal(project):
             msg = "internal error: the project text written does not read back as the project edited; nothing written"
