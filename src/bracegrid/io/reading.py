@@ -11,11 +11,10 @@ from __future__ import annotations
 import difflib
 import math
 import os
-import re
 import stat
 import tomllib
 import warnings
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, TypeVar
@@ -27,6 +26,7 @@ from shapely.validation import explain_validity
 
 import bracegrid.io.loads as loads
 from bracegrid.errors import InputError
+from bracegrid.io.positions import Positions, locate
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import read_robustness
 from bracegrid.model import (
@@ -74,32 +74,49 @@ MAX_NESTING = 16
 
 @dataclass(slots=True)
 class _Lines:
-    """Line numbers of array-of-table headers, found by scanning the text."""
+    """Line numbers of the file's tables and fields, from tomlkit's parser (:mod:`bracegrid.io.positions`)."""
 
     frames: list[int] = field(default_factory=list)
     members: list[list[int]] = field(default_factory=list)
     openings: list[list[int]] = field(default_factory=list)
+    found: Positions = field(default_factory=Positions)
 
     @classmethod
     def scan(cls, text: str) -> _Lines:
-        out = cls()
-        header = re.compile(r"^\s*\[\[\s*(frame(?:\s*\.\s*(?:member|opening))?)\s*\]\]")
-        for number, line in enumerate(text.splitlines(), start=1):
-            match = header.match(line)
-            if match is None:
-                continue
-            name = match.group(1).replace(" ", "")
-            if name == "frame":
-                out.frames.append(number)
-                out.members.append([])
-                out.openings.append([])
-            elif out.frames:
-                (out.members if name.endswith("member") else out.openings)[-1].append(number)
-        return out
+        found = locate(text) if text else Positions()
+        frames = found.array(("frame",))[0]
+        members = found.array(("frame", "member"), ("frame",))
+        openings = found.array(("frame", "opening"), ("frame",))
+        return cls(frames, members, openings, found)
 
     @staticmethod
     def at(lines: list[int], index: int) -> str:
         return f"line {lines[index]}, " if index < len(lines) else ""
+
+    def table(self, *path: str) -> str:
+        """``"line N, "`` for a table (its header, the key of an inline table, or its first sub-table), or ``""``."""
+        line = self.found.table(*path)
+        if line is None:
+            line = next((n for where, _, n in self.found.headers if where[: len(path)] == path), None)
+        return f"line {line}, " if line is not None else ""
+
+    def key(self, table: tuple[str, ...], key: str) -> str:
+        """``"line N, "`` for a field of a table (``()`` = the top level), or the table's line, or ``""``."""
+        line = self.found.key(table, key)
+        return f"line {line}, " if line is not None else (self.table(*table) if table else "")
+
+    def item(self, index: int, kind: str, k: int) -> str:
+        """The line of the ``k``-th ``[[frame.<kind>]]`` of frame ``index``, or of its inline ``<kind> = [...]`` key."""
+        tables = self.members if kind == "member" else self.openings
+        if index < len(tables) and k < len(tables[index]):
+            return f"line {tables[index][k]}, "
+        if index < len(self.frames):
+            frame_line = self.frames[index]
+            keyed = [n for (t, key), n in self.found.keys.items() if t == ("frame",) and key == (kind,)]
+            later = [n for n in keyed if n > frame_line and all(not (frame_line < f < n) for f in self.frames)]
+            if later:
+                return f"line {later[0]}, "
+        return ""
 
 
 class _Collector:
@@ -111,12 +128,14 @@ class _Collector:
     def add(self, where: str, what: str) -> None:
         self.problems.append(f"{where}: {what}")
 
-    def unknown_keys(self, where: str, table: Mapping[str, Any], known: set[str]) -> None:
+    def unknown_keys(
+        self, where: str, table: Mapping[str, Any], known: set[str], *, line: Callable[[str], str] | None = None
+    ) -> None:
         for key in table:
             if key not in known:
                 guess = difflib.get_close_matches(key, sorted(known), n=1)
                 hint = f"; did you mean {guess[0]!r}?" if guess else f"; known fields: {', '.join(sorted(known))}"
-                self.add(where, f"unknown field {key!r}{hint}")
+                self.add(f"{line(key) if line else ''}{where}", f"unknown field {key!r}{hint}")
 
     def number(
         self, where: str, value: object, *, minimum: float = 0.0, maximum: float, integer: bool = False
@@ -210,22 +229,26 @@ def _read_rate(col: _Collector, where: str, raw: object) -> CostRate | None:
     return CostRate(values["per_piece"], values["per_metre"], labour)
 
 
-def _read_costs(col: _Collector, raw: object) -> CostCatalogue | None:
+def _read_costs(col: _Collector, raw: object, lines: _Lines) -> CostCatalogue | None:
     if raw is None:
         col.add("[costs]", "missing; add [costs.brace] and [costs.tie] tables with per_piece and per_metre")
         return None
-    table = col.table("[costs]", raw)
+    table = col.table(f"{lines.key((), 'costs')}[costs]", raw)
     if table is None:
         return None
-    col.unknown_keys("[costs]", table, _COST_KEYS)
+    col.unknown_keys("[costs]", table, _COST_KEYS, line=lambda key: lines.key(("costs",), key))
     rates: dict[str, CostRate | None] = {}
     for kind in (k.value for k in MemberKind):
         if kind not in table:
-            col.add(f"[costs.{kind}]", "missing; add it with per_piece and per_metre (money)")
+            col.add(f"{lines.table('costs')}[costs.{kind}]", "missing; add it with per_piece and per_metre (money)")
             rates[kind] = None
         else:
-            rates[kind] = _read_rate(col, f"[costs.{kind}]", table[kind])
-    contingency = col.number("[costs].contingency_pct", table.get("contingency_pct", 0.0), maximum=MAX_CONTINGENCY_PCT)
+            rates[kind] = _read_rate(col, f"{lines.table('costs', kind)}[costs.{kind}]", table[kind])
+    contingency = col.number(
+        f"{lines.key(('costs',), 'contingency_pct')}[costs].contingency_pct",
+        table.get("contingency_pct", 0.0),
+        maximum=MAX_CONTINGENCY_PCT,
+    )
     if contingency is None or any(r is None for r in rates.values()):
         return None
     return CostCatalogue(**rates, contingency_pct=contingency)  # type: ignore[arg-type]  # None ruled out above
@@ -417,7 +440,7 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     frame_box = (sum(widths), sum(heights)) if widths and heights else None
     openings: list[Opening] = []
     for k, item in enumerate(_table_array(col, where, table, "opening")):
-        at = _Lines.at(lines.openings[index], k) if index < len(lines.openings) else ""
+        at = lines.item(index, "opening", k)
         got = _read_opening(col, f"{at}frame {name!r} opening #{k + 1}", item, unit, frame_box)
         if got is not None:
             openings.append(got)
@@ -427,7 +450,7 @@ def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lin
     members: list[Member] = []
     member_where: list[str] = []
     for k, item in enumerate(_table_array(col, where, table, "member")):
-        at = _Lines.at(lines.members[index], k) if index < len(lines.members) else ""
+        at = lines.item(index, "member", k)
         here = f"{at}frame {name!r} member #{k + 1}"
         member = _read_member(col, here, item, rows, cols)
         if member is not None:
@@ -593,22 +616,31 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
     """
     col = _Collector()
     lines = _Lines.scan(text)
-    col.unknown_keys("top level", data, {"project", "costs", "frame", ROBUSTNESS_TABLE} | loads.TOP_KEYS)
-    head = col.table("[project]", data.get("project", {}))
+    col.unknown_keys(
+        "top level",
+        data,
+        {"project", "costs", "frame", ROBUSTNESS_TABLE} | loads.TOP_KEYS,
+        line=lambda key: lines.table(key) or lines.key((), key),
+    )
+    at_project = lines.table("project")
+    head = col.table(f"{at_project}[project]", data.get("project", {}))
     name = "untitled"
     unit = "m"
     if head is not None:
-        col.unknown_keys("[project]", head, _PROJECT_KEYS)
+        col.unknown_keys("[project]", head, _PROJECT_KEYS, line=lambda key: lines.key(("project",), key))
         if "name" not in head:
-            col.add("[project]", "missing field 'name'; add e.g. name = \"My site\"")
+            col.add(f"{at_project}[project]", "missing field 'name'; add e.g. name = \"My site\"")
         else:
-            name = col.text("[project].name", head["name"]) or name
+            name = col.text(f"{lines.key(('project',), 'name')}[project].name", head["name"]) or name
         raw_unit = head.get("length_unit", "m")
         if raw_unit not in MM_PER_UNIT:
-            col.add("[project].length_unit", f"{raw_unit!r} is not one of {', '.join(MM_PER_UNIT)}")
+            col.add(
+                f"{lines.key(('project',), 'length_unit')}[project].length_unit",
+                f"{raw_unit!r} is not one of {', '.join(MM_PER_UNIT)}",
+            )
         else:
             unit = raw_unit
-    costs = _read_costs(col, data.get("costs"))
+    costs = _read_costs(col, data.get("costs"), lines)
     likelihood, robustness_problems = read_robustness(data.get(ROBUSTNESS_TABLE), text=text)
     col.problems.extend(robustness_problems)
     raw_frames = data.get("frame")

@@ -1,0 +1,135 @@
+"""Where each table and field of a project file sits: line numbers taken from tomlkit's own parser.
+
+Messages cite lines. Scanning the text for ``[[frame]]`` would be fooled by a multi-line string
+that holds such a line, would miss a quoted header (``[["frame"]]``), and knows nothing of inline
+tables; tomlkit (the style-preserving TOML library the writer uses) reads headers and keys where
+TOML says they are. Its parser is asked only where each header and key starts; the values are
+read by the standard library (``tomllib``) as before.
+"""
+
+from __future__ import annotations
+
+import bisect
+from dataclasses import dataclass, field
+from typing import Any
+
+import tomlkit
+import tomlkit.exceptions
+from tomlkit.items import DottedKey
+from tomlkit.parser import Parser
+
+Path = tuple[str, ...]
+
+
+@dataclass(slots=True)
+class Positions:
+    """Line numbers (from 1) of a file's table headers and keys.
+
+    Attributes:
+        headers: ``(path, is_array_table, line)`` for every ``[...]`` / ``[[...]]`` header, in file order.
+        keys: ``(table path, key path) -> line`` for every ``key = value`` (the first, if repeated).
+    """
+
+    headers: list[tuple[Path, bool, int]] = field(default_factory=list)
+    keys: dict[tuple[Path, Path], int] = field(default_factory=dict)
+
+    def table(self, *path: str) -> int | None:
+        """The line of a table's header, or of the key that holds it as an inline table (``costs.tie = {...}``)."""
+        for where, _, line in self.headers:
+            if where == path:
+                return line
+        best: int | None = None
+        for (table, key), line in self.keys.items():
+            if table + key == path and (best is None or line < best):
+                best = line
+        return best
+
+    def key(self, table: Path, key: str) -> int | None:
+        """The line of ``key`` in a table (its header path; ``()`` for the top level)."""
+        return self.keys.get((table, (key,)))
+
+    def array(self, path: Path, parent: Path = ()) -> list[list[int]]:
+        """Lines of the array-of-tables headers ``path``, grouped by the element of ``parent`` they belong to.
+
+        ``array(("frame",))`` gives ``[[line of frame 1, line of frame 2, ...]]``;
+        ``array(("frame", "member"), ("frame",))`` gives one list of member lines per frame.
+        """
+        groups: list[list[int]] = [[]] if not parent else []
+        for where, aot, line in self.headers:
+            if parent and where == parent and aot:
+                groups.append([])
+            elif where == path and aot and groups:
+                groups[-1].append(line)
+        return groups
+
+
+class _Locating(Parser):
+    """tomlkit's parser, noting where each header and key starts."""
+
+    def __init__(self, text: str) -> None:
+        super().__init__(text)
+        self.text = text
+        self.newlines = [k for k, c in enumerate(text) if c == "\n"]
+        self.found = Positions()
+        self.current: Path = ()
+        self.depth = 0
+
+    def line_at(self, index: int) -> int:
+        return bisect.bisect_left(self.newlines, index) + 1
+
+    def _parse_table(self, parent_name: Any = None, parent: Any = None) -> Any:
+        start = self._idx
+        end = self.text.find("\n", start)
+        header = self.text[start : len(self.text) if end < 0 else end]
+        path, aot = _header_path(header)
+        if path:
+            self.current = path
+            self.found.headers.append((path, aot, self.line_at(start)))
+        return super()._parse_table(parent_name, parent)
+
+    def _parse_key_value(self, parse_comment: bool = False) -> Any:
+        while self._idx < len(self.text) and self.text[self._idx] in " \t":
+            self.inc()
+        start = self._idx
+        self.depth += 1  # keys inside an inline table are not the table's own: not noted
+        try:
+            key, value = super()._parse_key_value(parse_comment)
+        finally:
+            self.depth -= 1
+        if self.depth == 0:
+            parts = tuple(k.key for k in key) if isinstance(key, DottedKey) else (key.key,)
+            self.found.keys.setdefault((self.current, parts), self.line_at(start))
+        return key, value
+
+
+def _header_path(header: str) -> tuple[Path, bool]:
+    """The key path of one header line such as ``[["frame".member]]  # note`` (tomlkit reads it alone)."""
+    try:
+        doc: Any = tomlkit.parse(header)
+    except tomlkit.exceptions.TOMLKitError:
+        return (), False
+    path: list[str] = []
+    node: Any = doc.unwrap()
+    aot = False
+    while isinstance(node, dict) and len(node) == 1:
+        name, node = next(iter(node.items()))
+        path.append(name)
+        if isinstance(node, list) and len(node) == 1:
+            aot, node = True, node[0]
+    return tuple(path), aot
+
+
+def locate(text: str) -> Positions:
+    """Where the headers and keys of a TOML text are; empty if tomlkit cannot read it.
+
+    Example:
+        >>> p = locate("a = 1\\n[[\\"frame\\"]]\\nname = \'\'\'x\\n[[frame]]\\n\'\'\'\\n[[frame.member]]\\nrow = 1\\n")
+        >>> p.array(("frame",)), p.array(("frame", "member"), ("frame",)), p.key(("frame", "member"), "row")
+        ([[2]], [[6]], 7)
+    """
+    parser = _Locating(text)
+    try:
+        parser.parse()
+    except (tomlkit.exceptions.TOMLKitError, RecursionError):
+        return Positions()
+    return parser.found
