@@ -237,3 +237,19 @@ def test_optimize_write_keeps_the_users_comments_and_every_frame(tmp_path: Path)
     assert all(c in new.splitlines() for c in comments)
     assert new.count("[[frame]]") == text.count("[[frame]]")
     assert new.count("[[frame.member]]") > text.count("[[frame.member]]")
+
+
+def test_draw_refuses_a_frame_too_large_to_read_at_once(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # 300 x 300 bays: before, 289 s and 3.6 GB for "A0 at 1:16384000"; now a plain message, nothing written.
+    path = tmp_path / "dense.toml"
+    path.write_text(
+        project_head("dense") + f'[[frame]]\nname = "dense"\nwidths = {[2.4] * 300}\nheights = {[2.0] * 300}\n',
+        encoding="utf-8",
+    )
+    monkeypatch.chdir(tmp_path)
+    started = time.monotonic()
+    code, _, err = run("draw", str(path))
+    assert code == 2
+    assert "frame 'dense' is 300 bays across and 300 up: too large to draw legibly on one sheet" in err
+    assert time.monotonic() - started < 30
+    assert not (tmp_path / "out").exists()

@@ -63,6 +63,7 @@ from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
     PlotFormat,
     check_dict,
+    check_drawable,
     compare_dict,
     force_summary_lines,
     forces_dict,
@@ -416,6 +417,7 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     folder = _flagged(
         "--out", lambda: check_out_folder(DEFAULT_OUT / f"{source.stem}-compare" if args.out is None else args.out)
     )
+    check_drawable(frames, per_frame=False)  # each strategy's DXF shows every frame: refuse before solving
     options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
     total = len(frames) * len(StrategyKey)
     with _progress() as progress:

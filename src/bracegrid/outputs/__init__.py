@@ -1,7 +1,7 @@
 """The outputs stage: text, JSON shapes, bill, DXF sheets (bracing, forces), previews, reports, plots, bundles."""
 
 from bracegrid.outputs.bill import Bom, build_bom, render_bom_csv
-from bracegrid.outputs.bundle import OutputFormat, parse_formats, render_compare_outputs, render_outputs
+from bracegrid.outputs.bundle import OutputFormat, check_drawable, parse_formats, render_compare_outputs, render_outputs
 from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes, write_dxf
 from bracegrid.outputs.forcefiles import render_force_files
 from bracegrid.outputs.forcesheet import ForceSheet, build_force_sheet, force_sheets
@@ -37,6 +37,7 @@ __all__ = [
     "build_drawing",
     "build_force_sheet",
     "check_dict",
+    "check_drawable",
     "compare_dict",
     "dxf_bytes",
     "force_sheets",

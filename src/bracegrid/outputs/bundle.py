@@ -16,7 +16,48 @@ from bracegrid.outputs.drawing import DrawnSheet, build_drawing, dxf_bytes
 from bracegrid.outputs.htmlreport import render_html
 from bracegrid.outputs.preview import PreviewFormat, render_preview
 from bracegrid.outputs.robustplot import PlotFormat, render_robustness_plot, strategy_panels
+from bracegrid.outputs.sheet import GAP, MARGIN, MIN_BAY, SHEETS
 from bracegrid.outputs.text import render_compare_csv
+
+#: Most bays across and up one sheet can show legibly: every bay printed at least MIN_BAY (10 mm)
+#: wide inside the margins of the largest sheet (A0: (1189 - 2 x 10) / 10 = 116 across,
+#: (841 - 2 x 10 - 8) / 10 = 81 up, before the legend and bill band takes its share).
+MAX_SHEET_COLS = int((SHEETS[-1][1] - 2 * MARGIN) / MIN_BAY)
+MAX_SHEET_ROWS = int((SHEETS[-1][2] - 2 * MARGIN - GAP) / MIN_BAY)
+
+
+def check_drawable(frames: Sequence[Frame], *, per_frame: bool) -> None:
+    """Refuse, in words and before any drawing work, a sheet too large to read.
+
+    A frame of more than :data:`MAX_SHEET_COLS` bays across or :data:`MAX_SHEET_ROWS` up cannot
+    print every bay 10 mm wide even on A0; drawn anyway it becomes a speck at 1:16384000 and costs
+    minutes and gigabytes. Several frames side by side that do not fit together can go on one
+    sheet each (``per_frame``).
+
+    Raises:
+        InputError: Naming each frame too large, its size and the limit.
+
+    Example:
+        >>> try:
+        ...     check_drawable([Frame("f", (3000,) * 300, (2000,) * 300)], per_frame=True)
+        ... except InputError as exc:
+        ...     print(exc.problems[0][:72])
+        frame 'f' is 300 bays across and 300 up: too large to draw legibly on on
+    """
+    problems = [
+        f"frame {f.name!r} is {f.cols} bays across and {f.rows} up: too large to draw legibly on one sheet (at most "
+        f"{MAX_SHEET_COLS} across and {MAX_SHEET_ROWS} up, every bay 10 mm on A0); draw it in parts (split it into "
+        "several frames) or use its bill of materials and check output"
+        for f in frames
+        if f.cols > MAX_SHEET_COLS or f.rows > MAX_SHEET_ROWS
+    ]
+    if not problems and not per_frame and sum(f.cols for f in frames) > MAX_SHEET_COLS:
+        problems.append(
+            f"the frames together are {sum(f.cols for f in frames)} bays across: too many for one sheet (at most "
+            f"{MAX_SHEET_COLS}); draw one sheet per frame with --per-frame, or choose frames with --frame"
+        )
+    if problems:
+        raise InputError(problems)
 
 
 class OutputFormat(Enum):
@@ -88,12 +129,16 @@ def render_outputs(
         when: Title-block date (default: today).
         dpi: PNG resolution.
 
+    Raises:
+        InputError: If a sheet would be too large to read (:func:`check_drawable`).
+
     Returns:
         The sheets drawn and the files: ``<stem>[-<frame>].<fmt>`` per sheet,
         ``<stem>-bom.csv`` (one row per member) and ``<stem>-bom-totals.csv`` (per frame
         and overall) for the frames drawn.
     """
     chosen = tuple(project.frames if frames is None else frames)
+    check_drawable(chosen, per_frame=per_frame)
     groups: list[tuple[str, tuple[Frame, ...]]]
     if per_frame:
         used: set[str] = set()
