@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from bracegrid.analysis.digraph import bay_arcs, strong_components
+from bracegrid.analysis.digraph import BoolArray, IntArray, bay_arcs, strong_components
 from bracegrid.optimize.bays import Additions, AdditionsBuilder, BayTable
 from bracegrid.optimize.patterns import PatternKind, closed_form_cost, pattern
 from bracegrid.optimize.results import SolveMethod, method_how
@@ -105,14 +105,22 @@ def spanning_tree_braces(table: BayTable) -> Shortcut | None:
     return Shortcut(add.build(), SolveMethod.SPANNING_TREE)
 
 
-def _row_options(table: BayTable, i: int, j: int, k: int) -> list[tuple[int, int, int, int]]:
-    """(braces, rising, falling, cost) choices for one bay (dominated X+brace mixes dropped for k = 0)."""
-    slots = int(table.free_slots[i, j])
+def _row_options(
+    table: BayTable, free: tuple[IntArray, BoolArray, BoolArray], i: int, j: int, k: int
+) -> list[tuple[int, int, int, int]]:
+    """(braces, rising, falling, cost) choices for one bay (dominated X+brace mixes dropped for k = 0).
+
+    ``free`` holds the table's ``free_slots``, ``rising_tie_ok`` and ``falling_tie_ok`` arrays, worked
+    out once per table (each property builds a whole new array: read per bay, they made the
+    shortcut quadratic in the number of bays, 13 s on a 200 x 200 frame).
+    """
+    slots_all, rising_ok, falling_ok = free
+    slots = int(slots_all[i, j])
     max_b = min(slots, 2 if k > 0 else 1) if table.brace_ok[i, j] else 0
     out = []
     for b in range(max_b + 1):
-        for tr in range(int(table.rising_tie_ok[i, j]) + 1):
-            for tf in range(int(table.falling_tie_ok[i, j]) + 1):
+        for tr in range(int(rising_ok[i, j]) + 1):
+            for tf in range(int(falling_ok[i, j]) + 1):
                 if b + tr + tf > slots or (k == 0 and b and (tr or tf)):
                     continue
                 cost = b * int(table.brace_cost[i, j]) + (tr + tf) * int(table.tie_cost[i, j])
@@ -141,12 +149,13 @@ def pinned_base_rows(table: BayTable, *, k: int = 0) -> Shortcut | None:
     """
     need = k + 1
     add = AdditionsBuilder.empty(table.rows, table.cols)
+    free = (table.free_slots, table.rising_tie_ok, table.falling_tie_ok)
     for i in range(table.rows):
         start = (min(need, int(table.exist_up[i].sum())), min(need, int(table.exist_down[i].sum())))
         # best[state] = (cost, choices)
         best: dict[tuple[int, int], tuple[int, list[tuple[int, int, int, int]]]] = {start: (0, [])}
         for j in range(table.cols):
-            options = _row_options(table, i, j, k)
+            options = _row_options(table, free, i, j, k)
             nxt: dict[tuple[int, int], tuple[int, list[tuple[int, int, int, int]]]] = {}
             for (u, d), (cost, picks) in best.items():
                 for b, tr, tf, c in options:
