@@ -1,7 +1,7 @@
 """Benchmark: does ``optimize --time-limit S`` bound the whole run on large frames?
 
 For square frames of N x N bays (invented for the benchmark: 2.4 m bays, 2 m lifts, a pinned
-base, one bay in 25 blocked at random, seed 7) it runs the real script ``bracegrid optimize
+base (solved by an exact shortcut) or free (CP-SAT search), one bay in 25 blocked at random, seed 7) it runs the real script ``bracegrid optimize
 --time-limit S --workers 2 --json`` in a fresh process and prints, per size: the wall time, the
 start-up (``bracegrid --version``), the run's exit code and what it reported (layout with its
 bound, or "no layout within the limit", exit 4). The target (issue 17): wall time within
@@ -22,16 +22,16 @@ import time
 from pathlib import Path
 
 
-def _project(n: int, folder: Path) -> Path:
+def _project(n: int, folder: Path, supports: str = "base") -> Path:
     rng = random.Random(7)
     blocked = sorted({(rng.randint(1, n), rng.randint(1, n)) for _ in range(n * n // 25)})
-    path = folder / f"grid-{n}.toml"
+    path = folder / f"grid-{n}-{supports}.toml"
     rows = ", ".join(f"[{i}, {j}]" for i, j in blocked)
     path.write_text(
         '[project]\nname = "limits benchmark (invented)"\n'
         "[costs.brace]\nper_piece = 25.0\nper_metre = 8.0\n[costs.tie]\nper_piece = 9.0\nper_metre = 3.0\n"
         f'[[frame]]\nname = "grid {n}"\nwidths = [{", ".join(["2.4"] * n)}]\nheights = [{", ".join(["2.0"] * n)}]\n'
-        f'supports = "base"\nblocked = [{rows}]\n',
+        f'supports = "{supports}"\nblocked = [{rows}]\n',
         encoding="utf-8",
     )
     return path
@@ -51,14 +51,16 @@ def main() -> None:
     parser.add_argument("--sizes", default="200,300,1000,3000")
     parser.add_argument("--limit", type=float, default=5.0)
     parser.add_argument("--kill", type=float, default=120.0)
+    parser.add_argument("--supports", default="base,free", help="base (exact shortcut), free (CP-SAT search)")
     args = parser.parse_args()
     script = [sys.executable, "-m", "bracegrid"]
     startup = min(_timed([*script, "--version"], 60)[0] for _ in range(3))
     print(f"start-up (bracegrid --version, best of 3): {startup:.2f} s; limit {args.limit:g} s")
-    print(f"{'frame':>11} {'wall s':>8} {'target s':>9} {'exit':>5}  result")
+    print(f"{'frame':>11} {'supports':>8} {'wall s':>8} {'target s':>9} {'exit':>5}  result")
+    cases = [(int(x), s) for s in args.supports.split(",") for x in args.sizes.split(",")]
     with tempfile.TemporaryDirectory() as tmp:
-        for n in (int(x) for x in args.sizes.split(",")):
-            path = _project(n, Path(tmp))
+        for n, supports in cases:
+            path = _project(n, Path(tmp), supports)
             argv = [*script, "optimize", str(path), "--time-limit", str(args.limit), "--workers", "2", "--json"]
             wall, code, out, err = _timed(argv, args.kill)
             target = 1.1 * args.limit + startup
@@ -69,7 +71,7 @@ def main() -> None:
                 result = f"{frame.get('status')}: cost {frame.get('cost')} bound {frame.get('bound')}"
             else:
                 result = (err.strip().splitlines() or ["(no message)"])[-1][:90]
-            print(f"{n:>5}x{n:<5} {wall:8.1f} {target:9.1f} {code if code is not None else '-':>5}  {result}")
+            print(f"{n:>5}x{n:<5} {supports:>8} {wall:8.1f} {target:9.1f} {code if code is not None else '-':>5}  {result}")
 
 
 if __name__ == "__main__":

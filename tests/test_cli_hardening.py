@@ -253,3 +253,25 @@ def test_draw_refuses_a_frame_too_large_to_read_at_once(tmp_path: Path, monkeypa
     assert "frame 'dense' is 300 bays across and 300 up: too large to draw legibly on one sheet" in err
     assert time.monotonic() - started < 30
     assert not (tmp_path / "out").exists()
+
+
+def test_time_limit_bounds_the_whole_run_of_the_script(tmp_path: Path) -> None:
+    # A 1000 x 1000 frame: reading it and building its tables alone takes longer than the limit.
+    n = 1000
+    path = tmp_path / "huge.toml"
+    path.write_text(
+        project_head("huge")
+        + f'[[frame]]\nname = "huge"\nwidths = [{", ".join(["2.4"] * n)}]\nheights = [{", ".join(["2.0"] * n)}]\n'
+        'supports = "base"\nblocked = [[3, 3], [500, 7]]\n',
+        encoding="utf-8",
+    )
+    argv = [sys.executable, "-m", "bracegrid", "optimize", str(path), "--time-limit", "1"]
+    started = time.monotonic()
+    done = subprocess.run(
+        [*argv, "--write", str(tmp_path / "o.toml")], capture_output=True, text=True, timeout=120, check=False
+    )
+    wall = time.monotonic() - started
+    assert done.returncode == 4, done.stderr
+    assert "no layout within the limit" in done.stderr
+    assert wall < 1.1 + 15  # 1.1 x the limit after start-up; start-up on a busy test machine is generous
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["huge.toml"]

@@ -22,6 +22,7 @@ import re
 import signal
 import sys
 import threading
+import time
 import webbrowser
 from collections.abc import Callable, Iterator, Sequence
 from datetime import date
@@ -281,18 +282,25 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
         problems.append("--keep-clear only applies with --without MEMBER ...")
     if problems:
         raise InputError(problems)
+    started = time.monotonic()
+    deadline = [started + args.time_limit * _LIMIT_SLACK]
+    if args.whole_run_limit:  # the script: --time-limit bounds the whole run, reading and set-up included
+        _arm_deadline(deadline, args.time_limit)
     original = read_project_text(args.project)
     project = parse_project(original, source=args.project)
     write_to = _flagged("--write", lambda: check_out_file(args.write)) if args.write is not None else None
     frames = _frames(project, args.frame)
+    deadline[0] = started + args.time_limit * len(frames) * _LIMIT_SLACK  # S per frame
     target = _without_frame(project, args)
     without = (
         {target.name: _flagged("--without", lambda: parse_member_refs(target, args.without))}
         if target is not None
         else {}
     )
+    # Reading a huge file already spent part of the limit: the search gets what is left of it.
+    spent = (time.monotonic() - started) / len(frames) if args.whole_run_limit else 0.0
     options = SolveOptions(
-        time_limit=args.time_limit,
+        time_limit=max(0.1 * args.time_limit, args.time_limit - spent),
         workers=args.workers,
         seed=args.seed,
         allow=_parse_allow(args.allow),
@@ -338,6 +346,36 @@ def _solver_problems(args: argparse.Namespace) -> list[str]:
 
 
 _MAX_WORKERS = 256
+
+#: The whole run of ``optimize`` (reading, set-up, warm starts, solves, re-checks, writing) may take
+#: this factor of ``--time-limit`` per frame (the 10% is for the work after the search).
+_LIMIT_SLACK = 1.1
+
+
+def _arm_deadline(deadline: list[float], limit: float) -> None:
+    """End the process with exit 4 if the run is not done by ``deadline[0]`` (monotonic; it may be moved later).
+
+    The library's search honours the limit on its own; the timer bounds what the search does not
+    see (reading a huge frame, its bay tables, warm starts, the final re-check). It waits for any
+    set of files being moved into place (:data:`~bracegrid.io.MOVING`) and removes temporary files,
+    so what is on disk is the old set or the new one.
+    """
+
+    def expire() -> None:
+        while time.monotonic() < deadline[0]:
+            time.sleep(min(0.05, max(0.0, deadline[0] - time.monotonic())))
+        with MOVING:
+            remove_temporaries()
+            _say(
+                sys.stderr,
+                f"solver limit: no layout within the limit ({limit:g} s per frame for the whole run, set-up "
+                "included); give it more seconds with --time-limit",
+            )
+            os._exit(EXIT_LIMIT)
+
+    threading.Thread(target=expire, name="time-limit", daemon=True).start()
+
+
 _MAX_SAMPLES = 100_000_000
 
 
@@ -677,6 +715,7 @@ def main(
         try:
             if signalled is not None and signalled():
                 raise KeyboardInterrupt
+            args.whole_run_limit = signalled is not None  # only the script, never an in-process caller
             code = _run(args, buffer, stderr)
             return _deliver(buffer.getvalue(), stdout, stderr, code, escape=not getattr(args, "json", False))
         except KeyboardInterrupt:  # a signal while the results are being delivered
