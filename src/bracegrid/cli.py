@@ -32,6 +32,7 @@ from typing import Any, TextIO, TypeVar
 from rich.console import Console
 from rich.progress import Progress
 
+import bracegrid.web as web  # web.create_app loads Starlette on first use only
 from bracegrid._version import __version__
 from bracegrid.analysis import (
     CAUTION,
@@ -90,7 +91,6 @@ from bracegrid.web import (
     bind_socket,
     bound_port,
     check_bind_address,
-    create_app,
     new_token,
     serve,
 )
@@ -388,7 +388,7 @@ def _seed_problems(args: argparse.Namespace) -> list[str]:
 def _add_solver_options(p: argparse.ArgumentParser, *, per: str, whole: str) -> None:
     p.add_argument(
         "--time-limit", type=float, default=60.0, metavar="S",
-        help=f"bounds the solver's search: S seconds for each {per} (default 60); {whole}",
+        help=f"S seconds for each {per} (default 60); {whole}",
     )  # fmt: skip
     p.add_argument("--workers", type=int, default=2, metavar="N", help="CP-SAT worker threads (default 2)")
     p.add_argument("--seed", type=int, default=0, metavar="N", help="CP-SAT random seed (default 0)")
@@ -510,7 +510,7 @@ def _cmd_edit(args: argparse.Namespace, out: TextIO) -> int:
     if not args.no_browser:
         webbrowser.open(url)
     try:
-        serve(create_app(session, rules), sock)
+        serve(web.create_app(session, rules), sock)
     except KeyboardInterrupt:  # a second Ctrl-C, or the signal raised again after a clean shutdown
         pass
     finally:
@@ -576,7 +576,10 @@ def build_parser() -> argparse.ArgumentParser:
     _add_common(opt)
     opt.add_argument("--allow", metavar="KINDS", help="member kinds to add, e.g. brace,tie (default: each frame's)")
     _add_solver_options(
-        opt, per="frame's solve", whole="the whole run may take up to S x the number of frames, plus a second or two"
+        opt,
+        per="frame",
+        whole="this bounds the whole run, reading, set-up and writing included (within 10%); "
+        "if no layout is ready by then: exit 4",
     )
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
     opt.add_argument(
@@ -616,7 +619,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     _add_common(cmp_)
     _add_solver_options(
-        cmp_, per="strategy's solve of each frame",
+        cmp_, per="strategy's solve of each frame (the search only)",
         whole="the whole run may take up to 5 x S x the number of frames, plus the drawing (seconds)",
     )  # fmt: skip
     cmp_.add_argument(
