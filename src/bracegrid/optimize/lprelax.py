@@ -101,12 +101,15 @@ class Columns:
 def columns(table: BayTable, k: int) -> Columns:
     """The variables of the cut model of ``table`` (same rules as :class:`CutModel`)."""
     slots = table.free_slots
+    # Each *_tie_ok property builds a whole new array: worked out once, not per bay (it made this
+    # quadratic in the number of bays, 9 s of a 200 x 200 frame's set-up).
+    ties = ((table.rising_tie_ok, Kind.RISING), (table.falling_tie_ok, Kind.FALLING))
     entries: list[tuple[int, int, Kind, int, int]] = []  # (i, j, kind, cost, top)
     for i, j in zip(*np.nonzero(slots), strict=True):
         s = int(slots[i, j])
         if table.brace_ok[i, j]:
             entries.append((int(i), int(j), Kind.BRACE, int(table.brace_cost[i, j]), min(s, 1 if k == 0 else 2)))
-        for ok, kd in ((table.rising_tie_ok, Kind.RISING), (table.falling_tie_ok, Kind.FALLING)):
+        for ok, kd in ties:
             if ok[i, j]:
                 entries.append((int(i), int(j), kd, int(table.tie_cost[i, j]), 1))
     ii, jj, kind, cost, top = (list(e) for e in zip(*entries, strict=True)) if entries else ([], [], [], [], [])
