@@ -275,3 +275,22 @@ def test_time_limit_bounds_the_whole_run_of_the_script(tmp_path: Path) -> None:
     assert "no layout within the limit" in done.stderr
     assert wall < 1.1 + 15  # 1.1 x the limit after start-up; start-up on a busy test machine is generous
     assert sorted(p.name for p in tmp_path.iterdir()) == ["huge.toml"]
+
+
+@pytest.mark.parametrize(
+    ("old", "new"),
+    [
+        ("per_piece = 25.0", "per_piece = 1e15"),  # check accepted it, optimize overflowed a C long
+        ("widths = [3.0, 3.0]", "widths = [1e308, 3.0]"),
+        ("widths = [3.0, 3.0]", "widths = [9223372036854775807, 3.0]"),
+        ("per_metre = 3.0", "per_metre = 1e300"),
+    ],
+)
+def test_check_and_optimize_agree_on_what_is_valid(tmp_path: Path, old: str, new: str) -> None:
+    path = tmp_path / "p.toml"
+    path.write_text(LOOSE.replace(old, new, 1), encoding="utf-8")
+    assert new in path.read_text(encoding="utf-8")
+    answers = {command: run(command, str(path), "--json") for command in ("check", "optimize")}
+    assert {command: code for command, (code, _, _) in answers.items()} == {"check": 2, "optimize": 2}
+    assert answers["check"][2] == answers["optimize"][2]  # the same message, naming field, value and range
+    assert "out of range" in answers["check"][2]

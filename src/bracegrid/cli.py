@@ -493,7 +493,11 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
 
 def _cmd_edit(args: argparse.Namespace, out: TextIO) -> int:
     host, loopback = _flagged("--bind", lambda: check_bind_address(args.bind))
-    paths = _flagged("--out", lambda: EditorPaths.beside(args.project, out=args.out))
+    if args.out == "":
+        msg = "--out empty folder name; give a folder path (e.g. out/)"
+        raise InputError(msg)
+    folder = DEFAULT_OUT / f"{Path(args.project).stem}-edit" if args.out is None else args.out
+    paths = _flagged("--out", lambda: EditorPaths.beside(args.project, out=folder))
     session = EditorSession(paths)  # reads and validates the project: bad input stops here
     sock = _flagged("--port", lambda: bind_socket(host, args.port))
     rules = GuardRules.bound(host, bound_port(sock), new_token())
@@ -667,7 +671,9 @@ def build_parser() -> argparse.ArgumentParser:
     edit.add_argument("--port", type=int, default=0, metavar="N", help="port to listen on (default 0: any free port)")
     edit.add_argument("--no-browser", action="store_true", help="print the URL only; do not open a browser")
     edit.add_argument(
-        "--out", metavar="DIR", help="folder for compare files and saved copies (default: <project>-edit)"
+        "--out",
+        metavar="DIR",
+        help="folder for compare files and saved copies (default: out/<project>-edit/ in the current directory)",
     )
     edit.add_argument(
         "--bind", default="127.0.0.1", metavar="ADDRESS",

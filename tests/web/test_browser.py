@@ -74,6 +74,7 @@ def served(tmp_path: Path, request: pytest.FixtureRequest) -> Iterator[tuple[str
     project = copy_project(tmp_path, name)
     proc = subprocess.Popen(
         [sys.executable, "-m", "bracegrid", "edit", str(project), "--no-browser"],
+        cwd=project.parent,  # outputs go into out/<project>-edit/ in the current directory
         stdout=subprocess.PIPE,
         stderr=subprocess.PIPE,
         text=True,
@@ -259,7 +260,7 @@ def test_save_conflict_offers_reload_and_a_copy(page: Any, served: tuple[str, Pa
     page.wait_for_selector("#copy-link a")
     href = page.get_attribute("#copy-link a", "href")
     assert re.match(r"^/out/\d+\?t=", href or "")
-    copies = list((project.parent / "orchard-shed-edit").glob("orchard-shed-copy-*.toml"))
+    copies = list((project.parent / "out" / "orchard-shed-edit").glob("orchard-shed-copy-*.toml"))
     assert len(copies) == 1
     page.once("dialog", lambda dialog: dialog.accept())
     page.click("#reload")
@@ -297,7 +298,7 @@ def test_compare_links_and_cancel(page: Any, served: tuple[str, Path]) -> None:
     assert page.locator("#compare-table tbody tr").count() == 5
     names = page.locator("#compare-files a").all_inner_texts()
     assert "report.html" in names
-    assert (project.parent / "orchard-shed-edit" / "report.html").exists()
+    assert (project.parent / "out" / "orchard-shed-edit" / "report.html").exists()
     # a long optimize on the roof, cancelled from the page
     page.click("button.frame-tab[data-index='0']")
     _settle(page)

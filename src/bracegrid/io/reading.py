@@ -138,9 +138,9 @@ class _Collector:
                 self.add(f"{line(key) if line else ''}{where}", f"unknown field {key!r}{hint}")
 
     def number(
-        self, where: str, value: object, *, minimum: float = 0.0, maximum: float, integer: bool = False
+        self, where: str, value: object, *, minimum: float = 0.0, maximum: float = math.inf, integer: bool = False
     ) -> float | None:
-        """A number in ``minimum..maximum`` (every number field has a documented range), or None."""
+        """A number in ``minimum..maximum``, or None (give every field its documented range as ``maximum``)."""
         ok = isinstance(value, int) if integer else isinstance(value, int | float)
         if isinstance(value, bool) or not ok:
             kind = "a whole number" if integer else "a number"
@@ -149,7 +149,8 @@ class _Collector:
         assert isinstance(value, int | float)
         # Compare before converting: a huge integer (9223372036854775807 and beyond) stays exact.
         if not (isinstance(value, int) or math.isfinite(value)) or not minimum <= value <= maximum:
-            self.add(where, f"{value!r} is out of range; give a value from {minimum:g} to {maximum:g}")
+            span = f"from {minimum:g} to {maximum:g}" if math.isfinite(maximum) else f"of at least {minimum:g}"
+            self.add(where, f"{value!r} is out of range; give a value {span}")
             return None
         return float(value)
 
