@@ -294,3 +294,22 @@ def test_check_and_optimize_agree_on_what_is_valid(tmp_path: Path, old: str, new
     assert {command: code for command, (code, _, _) in answers.items()} == {"check": 2, "optimize": 2}
     assert answers["check"][2] == answers["optimize"][2]  # the same message, naming field, value and range
     assert "out of range" in answers["check"][2]
+
+
+def test_version_and_check_do_not_load_the_heavy_libraries() -> None:
+    heavy = ("starlette", "uvicorn", "ortools", "matplotlib", "ezdxf")
+    done = subprocess.run(
+        [sys.executable, "-X", "importtime", "-m", "bracegrid", "--version"],
+        capture_output=True, text=True, timeout=60, check=False,
+    )  # fmt: skip
+    assert (done.returncode, done.stdout) == (0, f"bracegrid {cli.__version__}\n")
+    loaded = {line.rsplit("|", 1)[-1].strip().split(".")[0] for line in done.stderr.splitlines()}
+    assert "numpy" not in loaded
+    assert not loaded & set(heavy)
+    probe = (
+        "import io, sys\nfrom bracegrid.cli import main\n"
+        f"code = main(['check', {SHED!r}], out=io.StringIO())\n"
+        f"print(code, sorted({{m.split('.')[0] for m in sys.modules}} & {set(heavy)!r}))\n"
+    )
+    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, timeout=60, check=False)
+    assert done.stdout.strip() == "0 []", done.stderr
