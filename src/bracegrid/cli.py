@@ -715,6 +715,12 @@ def main(
     except (AttributeError, OSError):  # argparse printing --help or usage into a closed or failing stream
         return EXIT_IO
     if args.command == "edit":  # the URL must appear at once; the server handles its own signals
+        if signalled is not None and signalled():
+            _say(stderr, "interrupted")
+            return EXIT_INTERRUPTED
+        if signalled is not None:  # the script: Python's own handlers until the server's take over
+            signal.signal(signal.SIGINT, signal.default_int_handler)
+            signal.signal(signal.SIGTERM, signal.SIG_DFL)
         if stdout is None:
             _say(stderr, "bracegrid: standard output is closed; the editor's URL could not be shown")
             return EXIT_IO
