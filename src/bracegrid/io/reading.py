@@ -20,6 +20,7 @@ from typing import Any, TypeVar
 from shapely.geometry import box
 from shapely.validation import explain_validity
 
+import bracegrid.io.general as general
 import bracegrid.io.loads as loads
 from bracegrid.errors import InputError
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
@@ -45,7 +46,7 @@ _RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-} | loads.FRAME_KEYS  # fmt: skip
+} | loads.FRAME_KEYS | general.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -489,7 +490,8 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
     for index, raw in enumerate(raw_frames):
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
-            frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
+            got = loads.add_frame_loads(col, got, raw, index=index, text=text)
+            frames.append(general.add_frame_general(col, got, raw, index=index, text=text))
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")

@@ -8,6 +8,7 @@ from typing import Any
 import tomli_w
 
 from bracegrid.io.atomic import write_text_atomic
+from bracegrid.io.general import frame_general_fields
 from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import robustness_table
@@ -58,6 +59,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
             for m in sorted(frame.members, key=lambda m: m.sort_key)
         ]
     out.update(frame_load_fields(frame))
+    out.update(frame_general_fields(frame))
     return out
 
 

@@ -16,11 +16,13 @@ from bracegrid.analysis import (
     ROBUSTNESS_LIMITS,
     Addition,
     AdditionAdvice,
+    Flex,
     Robustness,
     Verdict,
     addition_words,
     anchor_words,
     describe_part,
+    flex_words,
 )
 from bracegrid.compare import Comparison, StrategyKey
 from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
@@ -65,6 +67,17 @@ def verdict_dict(verdict: Verdict) -> dict[str, Any]:
         "ties": verdict.ties,
         "maxwell": {"count": verdict.maxwell_count, "needed": verdict.maxwell_needed},
         "removed": [member_dict(m) for m in verdict.removed],
+        "method": verdict.method.value,
+    } | ({"mechanism": flex_dict(verdict.flex)} if verdict.flex is not None else {})
+
+
+def flex_dict(flex: Flex) -> dict[str, Any]:
+    """A general frame's mechanism as JSON: words, moving nodes (largest move 1) and racking bays."""
+    return {
+        "description": flex_words(flex),
+        "exact": flex.exact,
+        "nodes": [{"p": m.p, "q": m.q, "dx": round(m.dx, 6), "dy": round(m.dy, 6)} for m in flex.moves],
+        "bays": [{"row": b.row, "col": b.col, "direction": b.racking.value} for b in flex.bays],
     }
 
 
