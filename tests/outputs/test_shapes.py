@@ -35,7 +35,7 @@ OPTIONS = SolveOptions(time_limit=5, workers=1, seed=0)
 MEMBER_KEYS = {"row", "col", "kind", "diagonal"}
 VERDICT_KEYS = {
     "name", "stable", "racking_modes", "loose_parts", "anchor", "critical_members", "braces", "ties", "maxwell",
-    "removed",
+    "removed", "method",
 }  # fmt: skip
 FRAME_SOLUTION_KEYS = {
     "name", "status", "cost", "added_cost", "bound", "gap", "seconds", "method", "stable", "redundancy", "braces",

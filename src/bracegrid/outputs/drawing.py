@@ -6,7 +6,7 @@ model space is in millimetres (``$INSUNITS`` = 4) at true size; annotation is
 sized in paper millimetres times the sheet scale. Layers, symbols and the
 bill's columns are documented in docs/drawings.md.
 
-Every frame is re-checked with :func:`bracegrid.analysis.check_frame` before
+Every frame is re-checked with :func:`bracegrid.mechanics.check_frame_any` before
 it is drawn: the verdict, loose parts and critical members on the sheet come
 from that check, never from the caller.
 """
@@ -23,9 +23,10 @@ from typing import TYPE_CHECKING
 from shapely.geometry import Point
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, Verdict, check_frame
+from bracegrid.analysis import CAUTION, Verdict
 from bracegrid.errors import ExportError
 from bracegrid.io import write_bytes_atomic
+from bracegrid.mechanics import check_frame_any
 from bracegrid.model import (
     Diagonal,
     Frame,
@@ -115,7 +116,7 @@ def plan_frame(frame: Frame) -> FrameSheet:
         >>> plan_frame(Frame("f", (3000,), (2000,))).verdict.stable
         False
     """
-    return FrameSheet(frame=frame, verdict=check_frame(frame), blocked=blocked_bays(frame))
+    return FrameSheet(frame=frame, verdict=check_frame_any(frame), blocked=blocked_bays(frame))
 
 
 def part_tag(index: int) -> str:
