@@ -84,12 +84,22 @@ def flex_of(frame: Frame, result: Rigidity) -> Flex | None:
         for col in range(1, frame.cols + 1):
             if (row, col) in closed:
                 continue
-            bl, _, _, tr = bay_corners(row, col)
+            corners = [where[n] for n in bay_corners(row, col)]  # bl, br, tl, tr
             w, h = xs[col] - xs[col - 1], ys[row] - ys[row - 1]
-            d = u[where[tr]] - u[where[bl]]
-            stretch = (d[0] * w + d[1] * h) / float(np.hypot(w, h))
-            if abs(stretch) > MOVE_TOLERANCE:
-                bays.append(BayRack(row, col, Racking.CLOCKWISE if stretch > 0 else Racking.ANTICLOCKWISE))
+            pts = np.array([[0, 0], [w, 0], [0, h], [w, h]], dtype=float)
+            moved = u[corners]
+            # a bay changes shape when some distance between two of its corners changes (first order)
+            change = max(
+                abs(float((pts[b] - pts[a]) @ (moved[b] - moved[a]))) / float(np.hypot(*(pts[b] - pts[a])))
+                for a in range(4)
+                for b in range(a + 1, 4)
+            )
+            if change <= MOVE_TOLERANCE:
+                continue
+            # row racking minus column racking (docs/theory.md): top sways right / right side drops
+            sway = (moved[2, 0] + moved[3, 0] - moved[0, 0] - moved[1, 0]) / (2 * h)
+            drop = (moved[1, 1] + moved[3, 1] - moved[0, 1] - moved[2, 1]) / (2 * w)
+            bays.append(BayRack(row, col, Racking.CLOCKWISE if sway + drop >= 0 else Racking.ANTICLOCKWISE))
     return Flex(moves=moves, bays=tuple(bays), exact=result.exact_motion)
 
 
