@@ -44,32 +44,42 @@ def without_bars(frame: Frame, bars: Iterable[GridBar]) -> Frame:
     return dataclasses.replace(frame, missing=frame.missing | extra) if extra else frame
 
 
-def _deformation(frame: Frame, result: Rigidity) -> np.ndarray:
-    """Node moves of the mechanism with the rigid-body part taken out (free frames), largest move 1."""
-    u = result.node_motion()
-    coords = result.reduced.coords.astype(float)
-    fixed_any = bool(result.reduced.fixed.any())
-    if not fixed_any and len(coords):
-        centre = coords.mean(axis=0)
-        c = coords - centre
-        n = len(coords)
-        basis = np.zeros((2 * n, 3))
-        basis[0::2, 0] = 1.0
-        basis[1::2, 1] = 1.0
-        basis[0::2, 2] = -c[:, 1]
-        basis[1::2, 2] = c[:, 0]
-        flat = u.reshape(-1)
-        coef, *_ = np.linalg.lstsq(basis, flat, rcond=None)
-        u = (flat - basis @ coef).reshape(-1, 2)
+def _moving(u: np.ndarray) -> int:
     big = float(np.abs(u).max()) if u.size else 0.0
-    return u / big if big > 0 else u
+    return int((np.hypot(u[:, 0], u[:, 1]) > MOVE_TOLERANCE * big).sum()) if big > 0 else 0
+
+
+def _deformation(result: Rigidity) -> np.ndarray:
+    """Node moves of the mechanism to draw and describe, largest move 1.
+
+    Where the supports leave rigid-body motions, the flex is also shown with the rigid-body motion
+    that holds the bottom-left node and the bottom line's far node still (the "anchor", as the
+    digraph's loose parts are measured against an anchored part); whichever picture moves fewer
+    nodes is kept.
+    """
+    u = result.node_motion()
+    red = result.reduced
+    options = [u]
+    if not red.fixed.any() and len(red.nodes) > 1:
+        coords = red.coords.astype(float)
+        first = 0
+        far = max(range(len(red.nodes)), key=lambda k: (-red.nodes[k][0], red.nodes[k][1]))
+        if coords[far, 0] != coords[first, 0]:
+            # rigid motion (tx, ty, theta) that cancels the moves of both anchor nodes (x, y of first, y of far)
+            a = np.array([[1.0, 0.0, -coords[first, 1]], [0.0, 1.0, coords[first, 0]], [0.0, 1.0, coords[far, 0]]])
+            tx, ty, theta = np.linalg.solve(a, np.array([u[first, 0], u[first, 1], u[far, 1]]))
+            rigid = np.stack([tx - theta * coords[:, 1], ty + theta * coords[:, 0]], axis=1)
+            options.append(u - rigid)
+    best = min(options, key=_moving)
+    big = float(np.abs(best).max()) if best.size else 0.0
+    return best / big if big > 0 else best
 
 
 def flex_of(frame: Frame, result: Rigidity) -> Flex | None:
     """The mechanism of a non-rigid result as nodes and bays that move (None when rigid)."""
     if result.rigid or result.motion is None:
         return None
-    u = _deformation(frame, result)
+    u = _deformation(result)
     red = result.reduced
     where = {n: k for k, n in enumerate(red.nodes)}
     moves = tuple(

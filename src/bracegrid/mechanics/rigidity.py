@@ -262,6 +262,11 @@ def _gram(a: sp.csr_matrix) -> list[list[int]]:
     return [[int(prod[i, j]) for j in range(prod.ncols())] for i in range(prod.nrows())]
 
 
+def _spread(v: Sequence[int]) -> tuple[int, int]:
+    """How much of the frame a null vector moves: nonzero unknowns, then the largest entry."""
+    return (sum(x != 0 for x in v), max(map(abs, v)))
+
+
 def _exact_flex(gram: list[list[int]], trivial: IntArray) -> tuple[int, ...]:
     """An exact integer null vector of the Gram matrix that is not a rigid-body motion.
 
@@ -279,7 +284,11 @@ def _exact_flex(gram: list[list[int]], trivial: IntArray) -> tuple[int, ...]:
             stacked = flint.fmpz_mat([[*row, v[i]] for i, row in enumerate(rows)])
             if stacked.rank() == base_rank:
                 continue  # a rigid-body motion
-        if best is None or max(map(abs, v)) < max(map(abs, best)):
+        # the most local flex: fewest unknowns moving, then the smallest entries
+        if best is None or (sum(x != 0 for x in v), max(map(abs, v))) < (
+            sum(x != 0 for x in best),
+            max(map(abs, best)),
+        ):
             best = tuple(v)
     if best is None:  # pragma: no cover - the rank count says a non-trivial null vector exists
         msg = "exact null space holds only rigid-body motions although the rank is deficient"
