@@ -237,3 +237,19 @@ def test_ties_need_a_proper_self_stress() -> None:
     assert verdict.flex is not None
     assert not verdict.flex.exact
     assert not general_physically_rigid(frame, lone)
+
+
+def test_critical_members_agree_with_reference_brute_force() -> None:
+    """Critical members of rigid random general frames: the rank screen plus exact re-checks against
+    the reference re-run without each member in turn."""
+    rng = np.random.default_rng(31)
+    seen = 0
+    for _ in range(300):
+        frame, members = _random_general(rng)
+        if not exact_rigidity(frame, members).rigid:
+            continue
+        seen += 1
+        ours = set(check_any(frame, members).critical_members)
+        ref = {m for k, m in enumerate(members) if not general_physically_rigid(frame, members[:k] + members[k + 1 :])}
+        assert ours == ref, (frame, members)
+    assert seen >= 50

@@ -29,7 +29,7 @@ from bracegrid.analysis import (
     redundancy_of,
     remove_members,
 )
-from bracegrid.mechanics.rigidity import Rigidity, exact_rigidity, rank_target
+from bracegrid.mechanics.rigidity import Rigidity, bar_critical, exact_rigidity, rank_target, reduce_frame
 from bracegrid.model import Frame, GridBar, Member, MemberKind, Racking, Supports, bay_corners, closed_bays
 
 #: A node or bay counts as moved when its share of the largest move is above this: the motion is
@@ -115,16 +115,37 @@ def flex_of(frame: Frame, result: Rigidity) -> Flex | None:
 
 def _needed(frame: Frame) -> int:
     """Braces a minimum rigid layout of the general frame needs (the rank target of the exact check)."""
-    target, _, _ = rank_target(exact_rigidity(frame, []).reduced)
+    target, _, _ = rank_target(reduce_frame(frame, []))
     return target
 
 
+#: Up to this many members, every member of a rigid general layout with ties is re-checked without
+#: it (exact check each time); above it only the rank screen runs
+#: (:func:`bracegrid.mechanics.rigidity.bar_critical`), which finds every member whose loss leaves the
+#: all-bars framework flexible but not a tie whose loss only spoils the proper self-stress
+#: (docs/general-frames.md).
+BRUTE_FORCE_MEMBERS = 400
+
+
 def general_critical(frame: Frame, members: Sequence[Member]) -> tuple[Member, ...]:
-    """Members of a rigid general layout whose single loss leaves a mechanism (brute force, exact check)."""
+    """Members of a rigid general layout whose single loss leaves a mechanism.
+
+    The rank screen first (one inverse modulo two primes for all members); then, up to
+    :data:`BRUTE_FORCE_MEMBERS` members and when ties are present, every member the screen passes is
+    re-checked exactly without it (its loss may leave the ties without a proper self-stress).
+    """
     layout = tuple(members)
+    flags = bar_critical(frame, layout)
+    if flags is None:  # pragma: no cover - callers pass rigid layouts
+        flags = [False] * len(layout)
+    has_ties = any(m.kind is MemberKind.TIE for m in layout)
     out = []
     for k, m in enumerate(layout):
-        if not exact_rigidity(frame, layout[:k] + layout[k + 1 :]).rigid:
+        if flags[k] or (
+            has_ties
+            and len(layout) <= BRUTE_FORCE_MEMBERS
+            and not exact_rigidity(frame, layout[:k] + layout[k + 1 :]).rigid
+        ):
             out.append(m)
     return tuple(out)
 

@@ -52,6 +52,8 @@ FloatArray = npt.NDArray[np.float64]
 #: word-size modulus). A random-looking fixed prime is enough: a wrong "deficient" is caught by
 #: the exact fallback, and "full rank" modulo any prime is a proof.
 PRIME = (1 << 61) - 1
+#: A second prime (2^60 + 33, prime by flint's proven test) for the member screen of critical members.
+PRIME_2 = (1 << 60) + 33
 #: Relative residual accepted for a self-stress from the LP: HiGHS's primal feasibility tolerance
 #: is 1e-7 absolute on rows whose coefficients are direction cosines (at most 1), so an honest
 #: stress scaled to max 1 has a residual near 1e-7 per row; 1e-6 leaves a margin of ten, and a
@@ -338,6 +340,53 @@ def _tie_flex(a_unit: sp.csr_matrix, ties: npt.NDArray[np.bool_]) -> FloatArray 
         return None
     z: FloatArray = np.asarray(res.x, dtype=float)
     return z
+
+
+def bar_critical(frame: Frame, members: Sequence[Member]) -> list[bool] | None:
+    """For a layout whose all-bars framework is rigid: which members' single loss leaves it flexible.
+
+    With ``G = A^T A`` invertible, removing member e leaves ``G - a_e a_e^T``, whose determinant is
+    ``det G (1 - a_e^T G^-1 a_e)`` (matrix determinant lemma, any field). Modulo a prime, a nonzero
+    ``1 - a_e^T G^-1 a_e`` proves that e is not critical (the rational determinant is then nonzero);
+    zero modulo both :data:`PRIME` and :data:`PRIME_2` marks e critical (a rational nonzero value
+    divisible by both 61-bit primes is possible in principle; docs/general-frames.md says so).
+
+    Returns:
+        One flag per member, or None when the all-bars framework is not rigid modulo the primes.
+    """
+    layout = tuple(members)
+    red = reduce_frame(frame, layout)
+    _, free, trivial = rank_target(red)
+    # Hold the rigid-body motions the supports leave: drop unknowns where they are independent
+    # (then the layout is rigid iff the rest of A has full column rank).
+    held: list[int] = []
+    for k in range(trivial.shape[0]):
+        if len(held) == trivial.shape[1]:
+            break
+        if flint.fmpz_mat(trivial[[*held, k]].tolist()).rank() == len(held) + 1:
+            held.append(k)
+    keep = np.setdiff1d(np.arange(len(free)), held)
+    free = free[keep]
+    a = red.matrix()[:, free].tocsr()
+    gram = _gram(a)
+    flags: list[bool] | None = None
+    for prime in (PRIME, PRIME_2):
+        g = flint.nmod_mat(gram, prime)
+        if g.rank() < len(free):
+            return None
+        inv = [[int(v) for v in row] for row in g.inv().tolist()]
+        hits = []
+        for k in range(a.shape[0]):
+            cols = a.indices[a.indptr[k] : a.indptr[k + 1]].tolist()
+            vals = a.data[a.indptr[k] : a.indptr[k + 1]].tolist()
+            h = sum(
+                vi * vj * inv[ci][cj]
+                for ci, vi in zip(cols, vals, strict=True)
+                for cj, vj in zip(cols, vals, strict=True)
+            )
+            hits.append((1 - h) % prime == 0)
+        flags = hits if flags is None else [x and y for x, y in zip(flags, hits, strict=True)]
+    return flags
 
 
 def exact_rigidity(frame: Frame, members: Sequence[Member] | None = None) -> Rigidity:
