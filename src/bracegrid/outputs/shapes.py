@@ -350,7 +350,17 @@ def editor_frame_dict(frame: Frame, unit: str) -> dict[str, Any]:
         "blocked_by_openings": [list(b) for b in sorted(blocked_bays(frame) - listed)],
         "openings": [{"name": o.name, "polygon_mm": [list(p) for p in o.polygon]} for o in frame.openings],
         "members": [optimize_member_dict(m) for m in frame.members],
-    }
+    } | ({"general": True, "general_note": general_note(frame)} if not frame.is_complete else {})
+
+
+def general_note(frame: Frame) -> str:
+    """What the editor says about a general frame: it is checked exactly but shown read-only."""
+    bars = ", ".join(b.label for b in sorted(frame.missing)) or "none"
+    return (
+        f"Frame {frame.name!r} has missing grid bars ({bars}) or absent bays: the editor checks it exactly "
+        "but shows it read-only (it does not draw missing bars); edit it in the project file, or draw it "
+        "with bracegrid draw."
+    )
 
 
 def editor_project_dict(project: Project, *, version: str, file_name: str) -> dict[str, Any]:

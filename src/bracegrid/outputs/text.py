@@ -13,6 +13,7 @@ from bracegrid.analysis import (
     CAUTION,
     ROBUSTNESS_LIMITS,
     AdditionAdvice,
+    CheckMethod,
     Robustness,
     Verdict,
     addition_words,
@@ -78,6 +79,12 @@ def render_check(
     lines.append(
         "weighted count = braces + ties/2 (a tie holds one racking sense, half a brace); least needed = the "
         "weighted count every stable layout reaches (rows + columns - 1; rows on a pinned base)"
+        + (
+            "; method exact (missing grid bars or an outline): least needed = degrees of freedom left by the "
+            "grid bars and supports, the rank a rigid layout's members must reach"
+            if any(v.method is CheckMethod.EXACT for v in verdicts)
+            else ""
+        )
     )
     for v in verdicts:
         if v.removed:

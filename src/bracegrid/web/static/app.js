@@ -54,6 +54,8 @@
       openingBlocked: new Set(f.blocked_by_openings.map(([r, c]) => bayKey(r, c))),
       openings: f.openings,
       members,
+      general: Boolean(f.general),
+      generalNote: f.general_note || "",
       verdict: null,
       problems: [],
       size: null,
@@ -339,6 +341,7 @@
     renderGrid();
     renderVerdict(state.checkSeq);
     renderProblems();
+    if (f.general) flash(f.generalNote);
     if (check) scheduleCheck();
   }
 
@@ -607,6 +610,7 @@
     if (evt.button !== 0) return;
     const hit = pointerBay(evt);
     if (!hit) return;
+    if (frame().general) { flash(frame().generalNote); return; }
     evt.preventDefault();
     $("grid").focus();
     state.cursor = { ...hit };
@@ -676,6 +680,7 @@
     if (mod && evt.key.toLowerCase() === "y") { evt.preventDefault(); redo(); return; }
     if (mod && evt.key.toLowerCase() === "s") { evt.preventDefault(); save(); return; }
     if (document.activeElement !== $("grid")) return;
+    if (frame().general) return;
     const f = frame();
     const c = state.cursor;
     const moves = { ArrowLeft: [0, -1], ArrowRight: [0, 1], ArrowUp: [1, 0], ArrowDown: [-1, 0] };
