@@ -25,6 +25,7 @@ from scipy.sparse.csgraph import breadth_first_order
 from bracegrid.analysis.critical import critical_from_arcs
 from bracegrid.analysis.digraph import ArcSet, IntArray, arc_strong_components, build_arcs, csr, split_nodes
 from bracegrid.analysis.verdict import LoosePart, Verdict
+from bracegrid.errors import InputError
 from bracegrid.model import Frame, Member, Racking, Supports
 
 
@@ -32,15 +33,16 @@ def require_complete(frame: Frame) -> None:
     """Refuse a general frame: the row/column digraph decides complete grids only.
 
     Raises:
-        ValueError: If the frame has absent bays or missing grid bars (ask
+        InputError: If the frame has absent bays or missing grid bars (ask
             :func:`bracegrid.mechanics.check_any`, which uses the exact check there).
     """
     if not frame.is_complete:
         msg = (
             f"frame {frame.name!r} has missing grid bars or absent bays: the row/column digraph does not "
-            "decide it; use the exact check (bracegrid.mechanics.check_any)"
+            "decide it, and this analysis is built on it (docs/general-frames.md); the stability check "
+            "and the optimizer handle such frames exactly"
         )
-        raise ValueError(msg)
+        raise InputError(msg)
 
 
 def is_stable(frame: Frame, members: Sequence[Member] | None = None) -> bool:

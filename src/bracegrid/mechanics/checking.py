@@ -119,6 +119,8 @@ def _needed(frame: Frame) -> int:
     return target
 
 
+#: Largest redundancy counted on a general frame (brute force over every set of that many losses).
+GENERAL_REDUNDANCY_CAP = 2
 #: Up to this many members, every member of a rigid general layout with ties is re-checked without
 #: it (exact check each time); above it only the rank screen runs
 #: (:func:`bracegrid.mechanics.rigidity.bar_critical`), which finds every member whose loss leaves the
@@ -220,12 +222,14 @@ def critical_any(frame: Frame, members: Sequence[Member]) -> tuple[Member, ...]:
 def redundancy_any(frame: Frame, members: Sequence[Member], *, at_most: int = 8) -> int:
     """How many member losses (any set of that size) the layout survives, on any frame; -1 if not stable.
 
-    On a general frame every set of up to ``at_most`` losses is re-checked exactly (brute force),
-    stopping at the first set that leaves a mechanism.
+    On a general frame every set of up to ``min(at_most, GENERAL_REDUNDANCY_CAP)`` losses is re-checked
+    exactly (brute force), stopping at the first set that leaves a mechanism; the count is capped
+    there (the number of sets grows as members^k).
     """
     layout = tuple(members)
     if frame.is_complete:
         return redundancy_of(frame, layout, at_most=at_most)
+    at_most = min(at_most, GENERAL_REDUNDANCY_CAP)
     if not exact_rigidity(frame, layout).rigid:
         return -1
     for k in range(1, min(at_most, len(layout)) + 1):

@@ -34,7 +34,7 @@ from scipy.optimize import Bounds, LinearConstraint, milp
 
 from bracegrid.analysis import flex_words
 from bracegrid.analysis.digraph import arc_strong_components, build_arcs
-from bracegrid.errors import InfeasibleError, InputError, SolverLimitError
+from bracegrid.errors import InfeasibleError, SolverLimitError
 from bracegrid.mechanics import Rigidity, check_any, exact_rigidity, flex_of
 from bracegrid.model import (
     CostCatalogue,
@@ -262,7 +262,7 @@ def optimize_general(
 
     Raises:
         InfeasibleError: No layout makes the frame stable (with the mechanism that stays).
-        InputError: Redundancy asked on a general frame (not built).
+        InfeasibleError: Also when redundancy is asked (not built for general frames), saying so.
         SolverLimitError: No layout within the time limit.
     """
     start = time.monotonic()
@@ -270,11 +270,12 @@ def optimize_general(
     allow = frame.allow if options.allow is None else options.allow
     k = frame.redundancy if options.redundancy is None else options.redundancy
     if k:
-        msg = (
-            f"frame {frame.name!r}: redundancy on a frame with missing grid bars or absent bays is not "
-            "supported yet; set redundancy = 0 for this frame"
+        raise InfeasibleError(
+            [
+                f"frame {frame.name!r}: redundancy {k} on a frame with missing grid bars or absent bays is not "
+                "built yet (docs/general-frames.md); ask for redundancy 0 for this frame"
+            ]
         )
-        raise InputError(msg)
     kept = tuple(frame.members)
     cands = candidates(frame, costs, allow)
     reasons = _infeasible(frame, kept, cands)
