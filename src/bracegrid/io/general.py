@@ -170,6 +170,32 @@ def add_frame_general(col: Problems, frame: Frame, raw: Mapping[str, Any], *, in
     return out
 
 
+_INLINE_MISSING = re.compile(r"^missing = \[\n((?:    \{[^\n]*\},\n)+)\]\n", re.MULTILINE)
+_ENTRY = re.compile(r'\{ bar = "(\w+)", line = (\d+), span = (\d+) \}')
+
+
+def missing_as_tables(text: str) -> str:
+    r"""Write each frame's ``missing`` list in the fixed ``[[frame.missing]]`` table form.
+
+    The TOML writer puts short tables inline (``missing = [{ bar = ... }]``); the meaning is the same,
+    but the file form of missing bars is fixed as tables. ``missing`` is the last plain key of a
+    frame's table (tables follow it), so its tables can stand where the inline list stood.
+
+    Example:
+        >>> print(missing_as_tables('missing = [\n    { bar = "ledger", line = 1, span = 2 },\n]\n'), end="")
+        [[frame.missing]]
+        bar = "ledger"
+        line = 1
+        span = 2
+    """
+
+    def tables(match: re.Match[str]) -> str:
+        rows = _ENTRY.findall(match.group(1))
+        return "\n".join(f'[[frame.missing]]\nbar = "{b}"\nline = {line}\nspan = {span}\n' for b, line, span in rows)
+
+    return _INLINE_MISSING.sub(tables, text)
+
+
 def frame_general_fields(frame: Frame) -> dict[str, Any]:
     """The ``absent`` and ``missing`` entries of a frame's table (empty for a complete frame).
 

@@ -8,7 +8,7 @@ from typing import Any
 import tomli_w
 
 from bracegrid.io.atomic import write_text_atomic
-from bracegrid.io.general import frame_general_fields
+from bracegrid.io.general import frame_general_fields, missing_as_tables
 from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import robustness_table
@@ -87,7 +87,7 @@ def render_project(project: Project) -> str:
     if robustness is not None:
         doc[ROBUSTNESS_TABLE] = robustness
     doc["frame"] = [_frame(f, project.length_unit) for f in project.frames]
-    return tomli_w.dumps(doc)
+    return missing_as_tables(tomli_w.dumps(doc))
 
 
 def save_project(project: Project, path: str | Path) -> Path:
