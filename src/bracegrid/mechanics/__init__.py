@@ -24,7 +24,7 @@ from bracegrid.mechanics.results import (
     MemberForce,
     Reaction,
 )
-from bracegrid.mechanics.rigidity import Reduced, Rigidity, exact_rigidity, rank_target, reduce_frame
+from bracegrid.mechanics.rigidity import Reduced, Rigidity, exact_rigidity, member_rank, rank_target, reduce_frame
 from bracegrid.mechanics.tension import Equilibrium, exact_step, solve_tension_only
 
 __all__ = [
@@ -57,6 +57,7 @@ __all__ = [
     "exact_step",
     "flex_of",
     "free_motions",
+    "member_rank",
     "missing_stiffness",
     "nodal_loads",
     "prepare_layout",

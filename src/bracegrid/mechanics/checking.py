@@ -30,7 +30,7 @@ from bracegrid.analysis import (
     remove_members,
 )
 from bracegrid.mechanics.rigidity import Rigidity, bar_critical, exact_rigidity, rank_target, reduce_frame
-from bracegrid.model import Frame, GridBar, Member, MemberKind, Racking, Supports, bay_corners, closed_bays
+from bracegrid.model import Frame, GridBar, Member, MemberKind, Racking, bay_corners, closed_bays
 
 #: A node or bay counts as moved when its share of the largest move is above this: the motion is
 #: scaled to a largest node move of 1, exact flexes are rational (so zero is zero up to rounding,
@@ -188,7 +188,7 @@ def check_any(frame: Frame, members: Sequence[Member], *, removed: tuple[Member,
         braces=braces,
         ties=len(layout) - braces,
         maxwell_needed=_needed(frame),
-        supports=frame.supports if frame.supports is Supports.BASE else Supports.FREE,
+        supports=frame.supports,
         removed=removed,
         method=CheckMethod.EXACT,
         flex=flex_of(frame, result),

@@ -128,6 +128,8 @@ class Rigidity:
         exact_motion: True when ``motion`` is an exact integer null vector.
         prime_certified: True when full rank was proven modulo the prime (no rational elimination needed).
         reduced: The reduced framework the answer refers to.
+        others: Further exact flexes (with ``motion``, a basis of the flexes beyond rigid-body motions,
+            up to rigid-body parts), for the optimizer's cuts.
     """
 
     rigid: bool
@@ -137,6 +139,7 @@ class Rigidity:
     exact_motion: bool
     prime_certified: bool
     reduced: Reduced
+    others: tuple[tuple[int, ...], ...] = ()
 
     def node_motion(self) -> FloatArray:
         """Displacement (x, y) of every present node under the mechanism (zeros when rigid)."""
@@ -269,8 +272,8 @@ def _spread(v: Sequence[int]) -> tuple[int, int]:
     return (sum(x != 0 for x in v), max(map(abs, v)))
 
 
-def _exact_flex(gram: list[list[int]], trivial: IntArray) -> tuple[int, ...]:
-    """An exact integer null vector of the Gram matrix that is not a rigid-body motion.
+def _exact_flexes(gram: list[list[int]], trivial: IntArray) -> list[tuple[int, ...]]:
+    """Exact integer null vectors of the Gram matrix that are not rigid-body motions, most local first.
 
     Args:
         gram: ``A^T A`` over the free unknowns.
@@ -280,22 +283,18 @@ def _exact_flex(gram: list[list[int]], trivial: IntArray) -> tuple[int, ...]:
     vectors = [[int(basis[i, k]) for i in range(basis.nrows())] for k in range(nullity)]
     rows = trivial.tolist()
     base_rank = flint.fmpz_mat(rows).rank() if trivial.shape[1] else 0
-    best: tuple[int, ...] | None = None
+    found: list[tuple[int, ...]] = []
     for v in vectors:
         if trivial.shape[1]:
             stacked = flint.fmpz_mat([[*row, v[i]] for i, row in enumerate(rows)])
             if stacked.rank() == base_rank:
                 continue  # a rigid-body motion
-        # the most local flex: fewest unknowns moving, then the smallest entries
-        if best is None or (sum(x != 0 for x in v), max(map(abs, v))) < (
-            sum(x != 0 for x in best),
-            max(map(abs, best)),
-        ):
-            best = tuple(v)
-    if best is None:  # pragma: no cover - the rank count says a non-trivial null vector exists
+        found.append(tuple(v))
+    if not found:  # pragma: no cover - the rank count says a non-trivial null vector exists
         msg = "exact null space holds only rigid-body motions although the rank is deficient"
         raise NumericalError(msg)
-    return best
+    # the most local flex first: fewest unknowns moving, then the smallest entries
+    return sorted(found, key=_spread)
 
 
 def _unit_rows(red: Reduced, a: sp.csr_matrix) -> sp.csr_matrix:
@@ -340,6 +339,23 @@ def _tie_flex(a_unit: sp.csr_matrix, ties: npt.NDArray[np.bool_]) -> FloatArray 
         return None
     z: FloatArray = np.asarray(res.x, dtype=float)
     return z
+
+
+def member_rank(frame: Frame, members: Sequence[Member]) -> tuple[int, int]:
+    """The exact rank the members give the framework (all as bars), and the rank a rigid layout needs.
+
+    The prime's rank is a lower bound; it is exact when it meets the largest possible value
+    (members, or the target), otherwise integer elimination decides.
+    """
+    red = reduce_frame(frame, members)
+    target, free, _ = rank_target(red)
+    if not members or not len(free):
+        return 0, target
+    gram = _gram(red.matrix()[:, free].tocsr())
+    rank = flint.nmod_mat(gram, PRIME).rank()
+    if rank < min(len(members), len(free)):
+        rank = flint.fmpz_mat(gram).rank()
+    return rank, target
 
 
 def bar_critical(frame: Frame, members: Sequence[Member]) -> list[bool] | None:
@@ -423,11 +439,13 @@ def exact_rigidity(frame: Frame, members: Sequence[Member] | None = None) -> Rig
     if not certified:
         rank = flint.fmpz_mat(gram).rank() if size else 0
     if rank < target:
-        motion = _exact_flex(gram, trivial)
-        whole = [0] * red.classes
-        for k, v in zip(free.tolist(), motion, strict=True):
-            whole[k] = v
-        return Rigidity(False, False, target - rank, tuple(whole), True, False, red)
+        spread = []
+        for motion in _exact_flexes(gram, trivial):
+            whole = [0] * red.classes
+            for k, v in zip(free.tolist(), motion, strict=True):
+                whole[k] = v
+            spread.append(tuple(whole))
+        return Rigidity(False, False, target - rank, spread[0], True, False, red, others=tuple(spread[1:]))
     ties = np.array([m.kind is MemberKind.TIE for m in layout], dtype=bool)
     if not ties.any():
         return Rigidity(True, True, 0, None, False, certified, red)

@@ -35,7 +35,7 @@ from scipy.optimize import Bounds, LinearConstraint, milp
 from bracegrid.analysis import flex_words
 from bracegrid.analysis.digraph import arc_strong_components, build_arcs
 from bracegrid.errors import InfeasibleError, SolverLimitError
-from bracegrid.mechanics import Rigidity, check_any, exact_rigidity, flex_of
+from bracegrid.mechanics import Reduced, Rigidity, check_any, exact_rigidity, flex_of, member_rank
 from bracegrid.model import (
     CostCatalogue,
     Diagonal,
@@ -93,12 +93,11 @@ def candidates(frame: Frame, costs: CostCatalogue, allow: frozenset[MemberKind])
     return Candidates(tuple(members), tuple(cents), tuple(slot))
 
 
-def _elongations(result: Rigidity, frame: Frame, cands: Sequence[Member]) -> list[float] | list[int]:
-    """Elongation (times length) of each candidate under the result's flex, exact for exact flexes."""
-    red = result.reduced
+def _elongations(
+    red: Reduced, frame: Frame, z: Sequence[float] | Sequence[int], cands: Sequence[Member]
+) -> list[float]:
+    """Elongation (times length) of each candidate under the flex z (class unknowns); exact for integer z."""
     where = {n: k for k, n in enumerate(red.nodes)}
-    z = result.motion
-    assert z is not None
     xs, ys = frame.x_lines(), frame.y_lines()
     out = []
     for m in cands:
@@ -114,20 +113,33 @@ def _elongations(result: Rigidity, frame: Frame, cands: Sequence[Member]) -> lis
     return out
 
 
+def _stretched(e: Sequence[float], cands: Candidates, *, exact: bool) -> list[int]:
+    if exact:
+        return [k for k, m in enumerate(cands.members) if (e[k] != 0 if m.kind is MemberKind.BRACE else e[k] > 0)]
+    scale = max((abs(float(v)) for v in e), default=0.0)
+    tol = STRETCH_SHARE * scale
+    return [
+        k
+        for k, m in enumerate(cands.members)
+        if (abs(float(e[k])) > tol if m.kind is MemberKind.BRACE else float(e[k]) > tol)
+    ]
+
+
+def mechanism_cuts(result: Rigidity, frame: Frame, cands: Candidates) -> list[list[int]]:
+    """One cut per flex of the result: the candidates it stretches (a brace with nonzero elongation,
+    a tie with positive elongation). With several exact flexes (a basis), each gives its own cut."""
+    assert result.motion is not None
+    flexes = [result.motion, *result.others]
+    cuts = []
+    for z in flexes:
+        e = _elongations(result.reduced, frame, z, cands.members)
+        cuts.append(_stretched(e, cands, exact=result.exact_motion))
+    return cuts
+
+
 def mechanism_cut(result: Rigidity, frame: Frame, cands: Candidates) -> list[int]:
-    """Candidates (indices) that the result's flex stretches: a brace with nonzero, a tie with positive elongation."""
-    e = _elongations(result, frame, cands.members)
-    if result.exact_motion:
-        hit = [k for k, m in enumerate(cands.members) if (e[k] != 0 if m.kind is MemberKind.BRACE else e[k] > 0)]
-    else:
-        scale = max((abs(float(v)) for v in e), default=0.0)
-        tol = STRETCH_SHARE * scale
-        hit = [
-            k
-            for k, m in enumerate(cands.members)
-            if (abs(float(e[k])) > tol if m.kind is MemberKind.BRACE else float(e[k]) > tol)
-        ]
-    return hit
+    """Candidates (indices) that the result's first flex stretches."""
+    return mechanism_cuts(result, frame, cands)[0]
 
 
 def _arcs_of(frame: Frame, m: Member) -> list[tuple[int, int]]:
@@ -169,8 +181,9 @@ class _Master:
     proven: bool
 
 
-def _solve_master(cands: Candidates, cuts: list[list[int]], time_left: float) -> _Master | None:
-    """The 0/1 master: cheapest candidates meeting every cut, one member per diagonal (HiGHS)."""
+def _solve_master(cands: Candidates, cuts: list[list[int]], time_left: float, counts: dict[int, int]) -> _Master | None:
+    """The 0/1 master: cheapest candidates meeting every cut (at least one member of each, or
+    ``counts[i]`` of cut i), one member per diagonal (HiGHS)."""
     n = len(cands.members)
     if n == 0:
         return _Master((), 0, True)
@@ -185,12 +198,13 @@ def _solve_master(cands: Candidates, cuts: list[list[int]], time_left: float) ->
         (np.ones(len(rows) + n), (np.concatenate([rows, slot_rows]).astype(int), np.concatenate([cols, np.arange(n)]))),
         shape=(len(cuts) + int(slot.max()) + 1, n),
     )
-    lb = np.concatenate([np.ones(len(cuts)), np.zeros(a.shape[0] - len(cuts))])
+    lb = np.concatenate([[float(counts.get(i, 1)) for i in range(len(cuts))], np.zeros(a.shape[0] - len(cuts))])
     ub = np.concatenate([np.full(len(cuts), np.inf), np.ones(a.shape[0] - len(cuts))])
     constraints.append(LinearConstraint(a, lb, ub))
     res = milp(
         np.array(cands.cents, dtype=float), constraints=constraints, integrality=np.ones(n),
-        bounds=Bounds(0, 1), options={"time_limit": max(0.5, time_left), "disp": False},
+        # mip_rel_gap 0: HiGHS's default (1e-4) would call a layout a few cents dear "optimal"
+        bounds=Bounds(0, 1), options={"time_limit": max(0.5, time_left), "disp": False, "mip_rel_gap": 0.0},
     )  # fmt: skip
     if res.status == 2:
         return _Master((), 0, False)  # infeasible: the caller reports it
@@ -283,7 +297,12 @@ def optimize_general(
         raise InfeasibleError(reasons)
     index = {(m.row, m.col, m.diagonal, m.kind): i for i, m in enumerate(cands.members)}
     hinted = [index[(m.row, m.col, m.diagonal, m.kind)] for m in hint if (m.row, m.col, m.diagonal, m.kind) in index]
-    cuts: list[list[int]] = []
+    # Count cut: each member raises the rank of the all-bars framework by at most one, and a rigid
+    # layout reaches the rank target, so at least (target - rank of the kept members) are added.
+    kept_rank, target = member_rank(frame, kept)
+    need = max(0, target - kept_rank)
+    cuts: list[list[int]] = [list(range(len(cands.members)))] if need else []
+    counts = {0: need} if need else {}
     rounds = 0
     bound = lower_bound_cents
     answer: list[int] | None = None
@@ -311,16 +330,18 @@ def optimize_general(
             answer = trial if answer is None or cost < sum(cands.cents[i] for i in answer) else answer
         else:
             new = directed_cuts(frame, layout, cands)
-            cut = mechanism_cut(result, frame, cands)
-            if cut:
-                new.append(cut)
+            mech = mechanism_cuts(result, frame, cands)
+            if not mech[0]:
+                new = []  # the main flex cannot be stopped by any candidate
+            else:
+                new.extend(c for c in mech if c)
             if not new:
                 raise InfeasibleError(_infeasible(frame, layout, cands) or [f"frame {frame.name!r}: no member stops "
                                       "the mechanism of the kept layout"])  # fmt: skip
             cuts.extend(new)
         if time.monotonic() >= deadline:
             break
-        master = _solve_master(cands, cuts, deadline - time.monotonic())
+        master = _solve_master(cands, cuts, deadline - time.monotonic(), counts)
         rounds += 1
         if master is None:
             break
