@@ -27,7 +27,7 @@ import sys
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
-PROJECTS = ("quayside-scaffold", "orchard-shed", "mill-lane-roof")
+PROJECTS = ("quayside-scaffold", "orchard-shed", "mill-lane-roof", "harrow-depot")
 SOLVER = ["--workers", "1", "--seed", "0", "--time-limit", "20"]
 _VOLATILE_HEADER = {"$TDCREATE", "$TDUCREATE", "$TDUPDATE", "$TDUUPDATE", "$TDINDWG", "$TDUSRTIMER",
                     "$FINGERPRINTGUID", "$VERSIONGUID"}  # fmt: skip

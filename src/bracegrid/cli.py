@@ -38,7 +38,6 @@ from bracegrid.analysis import (
     CAUTION,
     AdditionAdvice,
     RobustnessOptions,
-    check_frame,
     project_robustness,
     rank_additions,
     remove_members,
@@ -46,12 +45,15 @@ from bracegrid.analysis import (
 from bracegrid.compare import COMPARE_SAMPLES, StrategyKey, StrategyRobustness, compare_project, compare_robustness
 from bracegrid.errors import BraceGridError, ExportError, InfeasibleError, InputError, SolverLimitError
 from bracegrid.io import (
+    GRID_BAR_REF_HELP,
     MEMBER_REF_HELP,
     MOVING,
     OutputFile,
     check_out_file,
     check_out_folder,
+    is_grid_bar_ref,
     load_project,
+    parse_grid_bar_refs,
     parse_member_refs,
     parse_project,
     read_project_text,
@@ -59,8 +61,8 @@ from bracegrid.io import (
     save_project,
     write_outputs,
 )
-from bracegrid.mechanics import FrameForces, analyse_frame
-from bracegrid.model import Frame, MemberKind, Project
+from bracegrid.mechanics import FrameForces, analyse_frame, check_frame_any, without_bars
+from bracegrid.model import Frame, Member, MemberKind, Project
 from bracegrid.optimize import ProgressEvent, SolveOptions, optimize_project
 from bracegrid.outputs import (
     PlotFormat,
@@ -172,25 +174,32 @@ def _without_frame(project: Project, args: argparse.Namespace) -> Frame | None:
     return _frames(project, args.frame)[0]
 
 
+def _split_without(frame: Frame, refs: Sequence[str]) -> tuple[Frame, tuple[Member, ...]]:
+    """The frame less the grid bars named in ``refs`` (``ledger3c4``), and the members named (``r2c3``)."""
+    bars = parse_grid_bar_refs(frame, [r for r in refs if is_grid_bar_ref(r)])
+    shaped = without_bars(frame, bars)
+    return shaped, parse_member_refs(shaped, [r for r in refs if not is_grid_bar_ref(r)])
+
+
 def _emit(out: TextIO, payload: dict[str, Any]) -> None:
     out.write(json.dumps(payload, indent=2) + "\n")
 
 
 def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
     project = load_project(args.project)
-    target = _without_frame(project, args)
-    taken = _flagged("--without", lambda: parse_member_refs(target, args.without)) if target is not None else ()
-    chosen = _frames(project, args.frame)
-    verdicts = [check_frame(f, without=taken if f is target else ()) for f in chosen]
+    original = _without_frame(project, args)
+    target, taken = _flagged("--without", lambda: _split_without(original, args.without)) if original else (None, ())
+    chosen = tuple(target if target is not None and f is original else f for f in _frames(project, args.frame))
+    verdicts = [check_frame_any(f, without=taken if f is target else ()) for f in chosen]
     forces = {
         f.name: analyse_frame(f, project.strength, members=remove_members(f, taken if f is target else ()))
         for f in chosen
-        if f.loads
+        if f.loads and f.is_complete  # general frames: stability only (docs/general-frames.md)
     }
     additions: dict[str, AdditionAdvice] = {
         f.name: rank_additions(f, project.costs, members=remove_members(f, taken) if f is target else None)
         for f, v in zip(chosen, verdicts, strict=True)
-        if not v.stable
+        if not v.stable and f.is_complete
     }
     if args.json:
         _emit(out, check_dict(verdicts, forces=forces, additions=additions))
@@ -548,7 +557,8 @@ def build_parser() -> argparse.ArgumentParser:
     _add_common(check)
     check.add_argument(
         "--without", nargs="+", default=[], metavar="MEMBER",
-        help=f"check as if these members were taken out (needs --frame if several frames): {MEMBER_REF_HELP}",
+        help=f"check as if these members or grid bars were taken out (needs --frame if several frames): "
+        f"{MEMBER_REF_HELP} Or {GRID_BAR_REF_HELP}.",
     )  # fmt: skip
     check.set_defaults(handler=_cmd_check)
 

@@ -45,8 +45,10 @@ def _member_order_free(project: Project) -> Project:
     return dataclasses.replace(project, frames=frames)
 
 
-def test_three_demo_files() -> None:
-    assert [p.name for p in DEMOS] == ["mill-lane-roof.toml", "orchard-shed.toml", "quayside-scaffold.toml"]
+def test_four_demo_files() -> None:
+    assert [p.name for p in DEMOS] == [
+        "harrow-depot.toml", "mill-lane-roof.toml", "orchard-shed.toml", "quayside-scaffold.toml",
+    ]  # fmt: skip
 
 
 @pytest.mark.parametrize("path", DEMOS, ids=lambda p: p.stem)

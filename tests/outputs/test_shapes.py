@@ -15,12 +15,13 @@ import pytest
 
 from bracegrid.analysis import CAUTION, check_frame
 from bracegrid.compare import Comparison, StrategyKey, compare_project
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, Project, Supports
+from bracegrid.model import Diagonal, Frame, GridBar, GridBarKind, Member, MemberKind, Project, Supports
 from bracegrid.optimize import ProjectSolution, SolveOptions, optimize_project
 from bracegrid.outputs.shapes import (
     check_dict,
     compare_dict,
     compare_rows,
+    editor_frame_dict,
     frame_solution_dict,
     member_dict,
     optimize_dict,
@@ -35,7 +36,7 @@ OPTIONS = SolveOptions(time_limit=5, workers=1, seed=0)
 MEMBER_KEYS = {"row", "col", "kind", "diagonal"}
 VERDICT_KEYS = {
     "name", "stable", "racking_modes", "loose_parts", "anchor", "critical_members", "braces", "ties", "maxwell",
-    "removed",
+    "removed", "method",
 }  # fmt: skip
 FRAME_SOLUTION_KEYS = {
     "name", "status", "cost", "added_cost", "bound", "gap", "seconds", "method", "stable", "redundancy", "braces",
@@ -179,3 +180,13 @@ def test_compare_rows_are_flat(comparison: Comparison) -> None:
     for row in rows:
         assert set(row) == STRATEGY_KEYS | {"frame", "strategy"}
     assert rows[0]["strategy"] == StrategyKey.BRACES_ONLY.title
+
+
+def test_editor_marks_general_frames_read_only() -> None:
+    plain = Frame("f", (3000, 3000), (2000,))
+    assert "general" not in editor_frame_dict(plain, "m")
+    gap = Frame("g", (3000, 3000), (2000,), missing=frozenset({GridBar(GridBarKind.LEDGER, 1, 2)}))
+    got = editor_frame_dict(gap, "m")
+    assert got["general"] is True
+    assert "ledger1c2" in got["general_note"]
+    assert "read-only" in got["general_note"]

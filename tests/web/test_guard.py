@@ -363,7 +363,7 @@ def test_an_unexpected_failure_is_a_json_500_and_the_server_goes_on(
         msg = "simulated bug"
         raise ZeroDivisionError(msg)
 
-    monkeypatch.setattr("bracegrid.web.app.check_frame", broken)
+    monkeypatch.setattr("bracegrid.web.app.check_frame_any", broken)
     got = client.post("/api/check", json={"frame": frame_edit(frame)}, headers=PAGE)
     _refused(got, 500, "internal")
     assert "simulated bug" in got.json()["message"]

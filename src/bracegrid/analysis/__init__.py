@@ -17,14 +17,22 @@ from bracegrid.analysis.robustness import (
     robustness_of,
     stable_without,
 )
-from bracegrid.analysis.stability import check_frame, check_layout, count_racking_modes, is_stable, remove_members
-from bracegrid.analysis.verdict import LoosePart, Verdict
+from bracegrid.analysis.stability import (
+    check_frame,
+    check_layout,
+    count_racking_modes,
+    is_stable,
+    remove_members,
+    require_complete,
+)
+from bracegrid.analysis.verdict import BayRack, CheckMethod, Flex, LoosePart, NodeMove, Verdict
 from bracegrid.analysis.words import (
     CAUTION,
     ROBUSTNESS_LIMITS,
     addition_words,
     anchor_words,
     describe_part,
+    flex_words,
     format_numbers,
     redundancy_words,
 )
@@ -36,10 +44,14 @@ __all__ = [
     "Addition",
     "AdditionAdvice",
     "ArcSet",
+    "BayRack",
+    "CheckMethod",
     "CurvePoint",
     "Estimate",
+    "Flex",
     "LoosePart",
     "MemberDrop",
+    "NodeMove",
     "Robustness",
     "RobustnessOptions",
     "Verdict",
@@ -53,6 +65,7 @@ __all__ = [
     "describe_part",
     "estimate_kept_stable",
     "find_critical_members",
+    "flex_words",
     "format_numbers",
     "frame_digraph",
     "is_stable",
@@ -62,6 +75,7 @@ __all__ = [
     "redundancy_of",
     "redundancy_words",
     "remove_members",
+    "require_complete",
     "robustness_of",
     "stable_without",
     "strong_bridges",

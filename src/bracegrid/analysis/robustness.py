@@ -54,6 +54,7 @@ from bracegrid.analysis.digraph import (
     build_arcs,
     strong_bottleneck,
 )
+from bracegrid.analysis.stability import require_complete
 from bracegrid.errors import InputError
 from bracegrid.model import Frame, LossLikelihood, Member, Project
 
@@ -541,6 +542,7 @@ def robustness_of(
         >>> [(p.lost, p.p_stable, p.exact) for p in r.curve], r.expected_losses.value
         ([(1, 0.0, True), (2, 0.0, True)], 1.0)
     """
+    require_complete(frame)
     problems = options.problems()
     if problems:
         raise InputError(problems)

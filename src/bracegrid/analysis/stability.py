@@ -25,7 +25,24 @@ from scipy.sparse.csgraph import breadth_first_order
 from bracegrid.analysis.critical import critical_from_arcs
 from bracegrid.analysis.digraph import ArcSet, IntArray, arc_strong_components, build_arcs, csr, split_nodes
 from bracegrid.analysis.verdict import LoosePart, Verdict
+from bracegrid.errors import InputError
 from bracegrid.model import Frame, Member, Racking, Supports
+
+
+def require_complete(frame: Frame) -> None:
+    """Refuse a general frame: the row/column digraph decides complete grids only.
+
+    Raises:
+        InputError: If the frame has absent bays or missing grid bars (ask
+            :func:`bracegrid.mechanics.check_any`, which uses the exact check there).
+    """
+    if not frame.is_complete:
+        msg = (
+            f"frame {frame.name!r} has missing grid bars or absent bays: the row/column digraph does not "
+            "decide it, and this analysis is built on it (docs/general-frames.md); the stability check "
+            "and the optimizer handle such frames exactly"
+        )
+        raise InputError(msg)
 
 
 def is_stable(frame: Frame, members: Sequence[Member] | None = None) -> bool:
@@ -45,6 +62,7 @@ def is_stable(frame: Frame, members: Sequence[Member] | None = None) -> bool:
         >>> is_stable(f, [Member(1, 1, b, Diagonal.RISING), Member(1, 2, b, Diagonal.RISING)])
         True
     """
+    require_complete(frame)
     layout = frame.members if members is None else members
     count, _ = arc_strong_components(build_arcs(frame, layout))
     return count == 1
@@ -102,6 +120,7 @@ def check_layout(frame: Frame, members: Sequence[Member], *, removed: tuple[Memb
         Stable or not, the racking modes, loose parts with their racking sense,
         critical members and the Maxwell-type count.
     """
+    require_complete(frame)
     layout = tuple(members)
     arcs = build_arcs(frame, layout)
     count, labels = arc_strong_components(arcs)
@@ -151,6 +170,7 @@ def check_frame(frame: Frame, *, without: Iterable[Member] = ()) -> Verdict:
 
 def count_racking_modes(frame: Frame, members: Sequence[Member] | None = None) -> int:
     """Independent racking modes left by a layout (0 when stable)."""
+    require_complete(frame)
     layout = frame.members if members is None else members
     count, _ = arc_strong_components(build_arcs(frame, layout))
     return count - 1

@@ -3,8 +3,67 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from enum import Enum
 
 from bracegrid.model import Member, Racking, Supports
+
+
+class CheckMethod(Enum):
+    """Which check decided a verdict."""
+
+    DIGRAPH = "digraph"
+    """The row/column digraph (directed-cycle criterion): exact for complete grids."""
+    EXACT = "exact"
+    """The rigidity-matrix check (exact rank, proper self-stress): any frame, used for general frames."""
+
+
+@dataclass(frozen=True, slots=True)
+class NodeMove:
+    """How one node moves in a flex (largest move scaled to 1).
+
+    Attributes:
+        p: Horizontal grid line of the node.
+        q: Vertical grid line of the node.
+        dx: Horizontal move (positive to the right).
+        dy: Vertical move (positive upwards).
+    """
+
+    p: int
+    q: int
+    dx: float
+    dy: float
+
+
+@dataclass(frozen=True, slots=True)
+class BayRack:
+    """A bay that a flex distorts, and which way it racks.
+
+    Attributes:
+        row: Row of the bay.
+        col: Column of the bay.
+        racking: Clockwise when the rising diagonal lengthens (top sways right), anticlockwise when it shortens.
+    """
+
+    row: int
+    col: int
+    racking: Racking
+
+
+@dataclass(frozen=True, slots=True)
+class Flex:
+    """A first-order mechanism of a general frame: a motion that keeps every bar and brace length and
+    lengthens no tie, with the rigid-body part taken out.
+
+    Attributes:
+        moves: Every node that moves, scaled so the largest move is 1.
+        bays: Every present bay that changes shape.
+        exact: True when the motion is an exact rational null vector; False when it comes from the
+            tie LP (floating point, checked against the tolerance in docs/general-frames.md).
+    """
+
+    moves: tuple[NodeMove, ...]
+    bays: tuple[BayRack, ...]
+    exact: bool
 
 
 @dataclass(frozen=True, slots=True)
@@ -39,6 +98,8 @@ class Verdict:
         maxwell_needed: Braces a minimum rigid layout needs (R+C-1 free, R on a base).
         supports: How the frame is held (a pinned base is then the anchor).
         removed: Members taken out for this check.
+        method: Which check decided.
+        flex: A mechanism of an unstable general frame (the digraph's loose parts describe complete grids).
     """
 
     frame: str
@@ -53,6 +114,8 @@ class Verdict:
     maxwell_needed: int
     supports: Supports = Supports.FREE
     removed: tuple[Member, ...] = ()
+    method: CheckMethod = CheckMethod.DIGRAPH
+    flex: Flex | None = None
 
     @property
     def maxwell_count(self) -> float:

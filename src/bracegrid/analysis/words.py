@@ -9,7 +9,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 
 from bracegrid.analysis.additions import Addition
-from bracegrid.analysis.verdict import LoosePart, Verdict
+from bracegrid.analysis.verdict import Flex, LoosePart, Verdict
 from bracegrid.model import Racking, Supports
 
 #: The caution every report, drawing title block and the README carries.
@@ -113,3 +113,46 @@ def addition_words(addition: Addition) -> str:
     """
     parts = "1 loose part" if addition.parts_locked == 1 else f"{addition.parts_locked} loose parts"
     return f"{addition.member.kind.value} {addition.member.label} locks {parts} (cost {addition.cost:.2f})"
+
+
+def _way(dx: float, dy: float) -> str:
+    """A node move in words: the larger component first (right/left, up/down); nodes are named
+    pPqQ (horizontal grid line P, vertical grid line Q)."""
+    horizontal = "right" if dx > 0 else "left"
+    vertical = "up" if dy > 0 else "down"
+    if abs(dx) >= 2 * abs(dy):
+        return horizontal
+    if abs(dy) >= 2 * abs(dx):
+        return vertical
+    return f"{horizontal} and {vertical}" if abs(dx) >= abs(dy) else f"{vertical} and {horizontal}"
+
+
+def _bay_list(labels: Sequence[str], *, limit: int = 8) -> str:
+    shown = ", ".join(labels[:limit])
+    return shown + (f" and {len(labels) - limit} more" if len(labels) > limit else "")
+
+
+def flex_words(flex: Flex) -> str:
+    """A mechanism of a general frame in words: which bays rack which way, which nodes move and where.
+
+    Example:
+        >>> from bracegrid.analysis.verdict import BayRack, NodeMove
+        >>> f = Flex((NodeMove(1, 0, 1.0, 0.0), NodeMove(1, 1, 1.0, 0.1)), (BayRack(1, 1, Racking.CLOCKWISE),), True)
+        >>> flex_words(f)
+        'mechanism: bay r1c1 racks clockwise (top sways right); 2 nodes move, furthest node p1q1 (moving right)'
+    """
+    parts: list[str] = []
+    for sense, words in ((Racking.CLOCKWISE, "top sways right"), (Racking.ANTICLOCKWISE, "top sways left")):
+        labels = [f"r{b.row}c{b.col}" for b in flex.bays if b.racking is sense]
+        if labels:
+            noun = "bay" if len(labels) == 1 else "bays"
+            verb = "racks" if len(labels) == 1 else "rack"
+            parts.append(f"{noun} {_bay_list(labels)} {verb} {sense.value} ({words})")
+    if not parts:
+        parts.append("no bay changes shape: part of the frame turns or slides about a node or a line")
+    if flex.moves:
+        top = max(flex.moves, key=lambda m: m.dx * m.dx + m.dy * m.dy)
+        count = len(flex.moves)
+        nodes = f"{count} node{'s' if count != 1 else ''}"
+        parts.append(f"{nodes} move, furthest node p{top.p}q{top.q} (moving {_way(top.dx, top.dy)})")
+    return "mechanism: " + "; ".join(parts)

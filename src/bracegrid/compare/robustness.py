@@ -51,7 +51,7 @@ def compare_robustness(
     out = []
     for fc in comparison.frames:
         for s in fc.strategies:
-            if s.frame is None or not s.stable:
+            if s.frame is None or not s.stable or not s.frame.is_complete:  # general frames: no digraph curves
                 continue
             if on_progress is not None:
                 on_progress(fc.frame.name, s.key)

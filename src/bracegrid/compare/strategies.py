@@ -28,10 +28,10 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from enum import Enum
 
-from bracegrid.analysis import Verdict, check_layout, redundancy_of
+from bracegrid.analysis import Verdict
 from bracegrid.compare.baseline import rule_of_thumb_layout
 from bracegrid.errors import InfeasibleError
-from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
+from bracegrid.mechanics import FrameForces, analyse_frame, check_any, missing_stiffness, redundancy_any
 from bracegrid.model import (
     CostCatalogue,
     Frame,
@@ -273,11 +273,11 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
     t0 = time.perf_counter()
     drawn = rule_of_thumb_layout(frame)
     added = len(drawn) - len(frame.members)
-    verdict = check_layout(frame, drawn)
+    verdict = check_any(frame, drawn)
     if verdict.stable:
         note = f"as drawn: {added} members added by the rule, stable without repair"
         return _summary(StrategyKey.BASELINE, frame, costs, drawn, verdict=verdict,
-                        redundancy=redundancy_of(frame, drawn), status=StrategyStatus.AS_DRAWN,
+                        redundancy=redundancy_any(frame, drawn), status=StrategyStatus.AS_DRAWN,
                         seconds=time.perf_counter() - t0, note=note)  # fmt: skip
     as_drawn_cents = layout_cost_cents(frame, costs, drawn)
     as_drawn = as_drawn_cents / 100
@@ -302,7 +302,9 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
 def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> StrategyResult:
     """The result with its layout's member forces, where the frame has loads and the stiffness is given."""
     layout = result.frame
-    if strength is None or layout is None or not layout.loads or missing_stiffness(layout, strength, layout.members):
+    if strength is None or layout is None or not layout.loads or not layout.is_complete:
+        return result
+    if missing_stiffness(layout, strength, layout.members):
         return result
     return dataclasses.replace(result, forces=analyse_frame(layout, strength))
 

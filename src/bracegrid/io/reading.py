@@ -24,6 +24,7 @@ import tomlkit.exceptions
 from shapely.geometry import box
 from shapely.validation import explain_validity
 
+import bracegrid.io.general as general
 import bracegrid.io.loads as loads
 from bracegrid.errors import InputError
 from bracegrid.io.positions import Positions, locate
@@ -53,7 +54,7 @@ _RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-} | loads.FRAME_KEYS  # fmt: skip
+} | loads.FRAME_KEYS | general.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -653,7 +654,9 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
         before = len(col.problems)
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
-            frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
+            got = loads.add_frame_loads(col, got, raw, index=index, text=text)
+            got = general.add_frame_general(col, got, raw, index=index, text=text)
+            frames.append(got)
             _check_layout_price(col, got, costs)
         elif len(col.problems) == before:  # never drop a frame without saying why
             col.add(f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}", "could not be read; check its fields")

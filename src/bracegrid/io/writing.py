@@ -18,6 +18,7 @@ from tomlkit.items import AoT, Table
 
 from bracegrid.errors import InputError
 from bracegrid.io.atomic import write_text_atomic
+from bracegrid.io.general import frame_general_fields, missing_as_tables
 from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
 from bracegrid.io.reading import parse_project
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
@@ -60,6 +61,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
     if frame.members:
         out["member"] = [_member(m) for m in frame.members]  # in the frame's own order: it reads back equal
     out.update(frame_load_fields(frame))
+    out.update(frame_general_fields(frame))
     return out
 
 
@@ -97,7 +99,7 @@ def render_project(project: Project) -> str:
     if robustness is not None:
         doc[ROBUSTNESS_TABLE] = robustness
     doc["frame"] = [_frame(f, project.length_unit) for f in project.frames]
-    return tomli_w.dumps(doc)
+    return missing_as_tables(tomli_w.dumps(doc))
 
 
 #: Frame fields :func:`update_project_text` writes into the user's table when they changed (members apart).

@@ -1,5 +1,14 @@
 """The mechanics stage: the real bar framework, direct stiffness, tension-only ties, member forces."""
 
+from bracegrid.mechanics.checking import (
+    check_any,
+    check_frame_any,
+    critical_any,
+    flex_of,
+    redundancy_any,
+    stable_any,
+    without_bars,
+)
 from bracegrid.mechanics.forces import LayoutModel, analyse_frame, analyse_project, envelope, prepare_layout
 from bracegrid.mechanics.framework import BarFramework, BarKind, GridBarRef, build_framework, missing_stiffness
 from bracegrid.mechanics.loading import nodal_loads, tributary_shares
@@ -15,6 +24,7 @@ from bracegrid.mechanics.results import (
     MemberForce,
     Reaction,
 )
+from bracegrid.mechanics.rigidity import Reduced, Rigidity, exact_rigidity, member_rank, rank_target, reduce_frame
 from bracegrid.mechanics.tension import Equilibrium, exact_step, solve_tension_only
 
 __all__ = [
@@ -33,16 +43,29 @@ __all__ = [
     "MechanismKind",
     "MemberForce",
     "Reaction",
+    "Reduced",
+    "Rigidity",
     "analyse_frame",
     "analyse_project",
     "build_framework",
+    "check_any",
+    "check_frame_any",
+    "critical_any",
     "driven_motion",
     "envelope",
+    "exact_rigidity",
     "exact_step",
+    "flex_of",
     "free_motions",
+    "member_rank",
     "missing_stiffness",
     "nodal_loads",
     "prepare_layout",
+    "rank_target",
+    "reduce_frame",
+    "redundancy_any",
     "solve_tension_only",
+    "stable_any",
     "tributary_shares",
+    "without_bars",
 ]

@@ -100,6 +100,12 @@ def prepare_layout(frame: Frame, strength: StrengthCatalogue, members: Sequence[
     Raises:
         InputError: If a stiffness the layout needs is missing.
     """
+    if not frame.is_complete:
+        msg = (
+            f"frame {frame.name!r}: member forces of a frame with missing grid bars or absent bays are not "
+            "built yet (docs/general-frames.md); its stability is checked exactly by bracegrid check"
+        )
+        raise InputError(msg)
     layout = tuple(frame.members if members is None else members)
     fw = build_framework(frame, strength, members=layout)
     free = free_motions(frame, layout)

@@ -11,7 +11,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from bracegrid.model.costs import CostCatalogue
-from bracegrid.model.kinds import Diagonal, Edge, MemberKind, Supports
+from bracegrid.model.kinds import Diagonal, Edge, GridBarKind, MemberKind, Supports
 from bracegrid.model.loads import LoadCase, StrengthCatalogue
 from bracegrid.model.losses import LossLikelihood
 from bracegrid.units import cut_length_mm, diagonal_mm
@@ -52,6 +52,48 @@ class Member:
         return f"r{self.row}c{self.col}:{self.diagonal.value}"
 
 
+@dataclass(frozen=True, slots=True, order=True)
+class GridBar:
+    """One grid bar segment between two adjacent nodes.
+
+    Attributes:
+        kind: Ledger (horizontal) or standard (vertical).
+        line: The horizontal grid line of a ledger (0..R) or the vertical grid line of a standard (0..C).
+        span: The column a ledger spans or the row a standard spans, 1-based.
+    """
+
+    kind: GridBarKind
+    line: int
+    span: int
+
+    @property
+    def label(self) -> str:
+        """Compact reference, e.g. ``ledger3c4`` (line 3, column 4) or ``standard2r5`` (line 2, row 5)."""
+        return f"{self.kind.value}{self.line}{self.kind.span_letter}{self.span}"
+
+    def ends(self) -> tuple[tuple[int, int], tuple[int, int]]:
+        """The two nodes (p, q) it joins, in grid-line coordinates.
+
+        Example:
+            >>> GridBar(GridBarKind.LEDGER, 3, 4).ends()
+            ((3, 3), (3, 4))
+        """
+        if self.kind is GridBarKind.LEDGER:
+            return (self.line, self.span - 1), (self.line, self.span)
+        return (self.span - 1, self.line), (self.span, self.line)
+
+    def bays(self) -> tuple[tuple[int, int], tuple[int, int]]:
+        """The two bays (row, col) it borders (one may lie outside the grid).
+
+        Example:
+            >>> GridBar(GridBarKind.STANDARD, 0, 2).bays()
+            ((2, 0), (2, 1))
+        """
+        if self.kind is GridBarKind.LEDGER:
+            return (self.line, self.span), (self.line + 1, self.span)
+        return (self.span, self.line), (self.span, self.line + 1)
+
+
 @dataclass(frozen=True, slots=True)
 class Opening:
     """A clear zone in a frame (door, hoist run, duct).
@@ -84,7 +126,10 @@ class Frame:
         redundancy: Members whose loss the layout must survive (0 = none).
         loads: Load cases for the member-force analysis (none: stability only).
         held_edges: Edges a wall line under them holds along their own direction (plan grids,
-            ``supports`` free); they enter the force analysis only.
+            ``supports`` free); they enter the force analysis, and the exact check of a general frame.
+        missing: Grid bar segments left out (see :mod:`bracegrid.model.gridbars`).
+        absent: Bays outside the frame's outline; their grid bars go with them unless a present
+            bay still needs them.
     """
 
     name: str
@@ -99,6 +144,13 @@ class Frame:
     redundancy: int = 0
     loads: tuple[LoadCase, ...] = ()
     held_edges: frozenset[Edge] = frozenset()
+    missing: frozenset[GridBar] = frozenset()
+    absent: frozenset[tuple[int, int]] = frozenset()
+
+    @property
+    def is_complete(self) -> bool:
+        """True when every bay and every grid bar is present (the row/column digraph then decides)."""
+        return not self.missing and not self.absent
 
     @property
     def rows(self) -> int:

@@ -7,6 +7,7 @@ from bisect import bisect_left, bisect_right
 from shapely.geometry import Polygon, box
 
 from bracegrid.model.frame import Frame, Opening
+from bracegrid.model.gridbars import closed_bays
 
 
 def bay_box(frame: Frame, row: int, col: int) -> Polygon:
@@ -58,14 +59,15 @@ def bays_blocked_by(frame: Frame, opening: Opening) -> frozenset[tuple[int, int]
 
 
 def blocked_bays(frame: Frame) -> frozenset[tuple[int, int]]:
-    """Every bay where no member may go: listed ones plus those openings block.
+    """Every bay where no member may go: listed ones, those openings block, and those outside the outline
+    or missing a corner node (:func:`bracegrid.model.gridbars.closed_bays`).
 
     Example:
         >>> from bracegrid.model import Frame
         >>> sorted(blocked_bays(Frame("f", (3000,), (2000,), blocked=frozenset({(1, 1)}))))
         [(1, 1)]
     """
-    out = set(frame.blocked)
+    out = set(frame.blocked) | closed_bays(frame)
     for opening in frame.openings:
         out |= bays_blocked_by(frame, opening)
     return frozenset(out)

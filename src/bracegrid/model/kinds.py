@@ -14,6 +14,20 @@ class MemberKind(Enum):
     """Tension-only diagonal (strap, cable, rod): resists lengthening only."""
 
 
+class GridBarKind(Enum):
+    """What a grid bar segment is."""
+
+    LEDGER = "ledger"
+    """Horizontal: on a horizontal grid line, spanning one column."""
+    STANDARD = "standard"
+    """Vertical: on a vertical grid line, spanning one row."""
+
+    @property
+    def span_letter(self) -> str:
+        """``c`` for a ledger (it spans a column), ``r`` for a standard (it spans a row)."""
+        return "c" if self is GridBarKind.LEDGER else "r"
+
+
 class Diagonal(Enum):
     """Which diagonal of a bay a member lies on."""
 

@@ -8,8 +8,9 @@ Dispatch for one frame (docs/optimizer.md explains each route):
 4. otherwise: CP-SAT on the cut model with lazily separated directed cuts,
    warm-started from a greedy repair layout, with symmetry breaking.
 
-Every layout returned is re-verified with :func:`bracegrid.analysis.check_layout`
-(and, when redundancy is asked, :func:`bracegrid.analysis.redundancy_of`).
+Every layout returned is re-verified with :func:`bracegrid.mechanics.check_any` (the digraph on
+complete grids, the exact check on general frames) and, when redundancy is asked,
+:func:`bracegrid.mechanics.redundancy_any`.
 
 References:
     E. D. Bolker and H. Crapo, "Bracing rectangular frameworks. I",
@@ -25,12 +26,13 @@ import time
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 
-from bracegrid.analysis import check_layout, redundancy_of
 from bracegrid.errors import InfeasibleError, InputError, SolverLimitError
+from bracegrid.mechanics import check_any, redundancy_any
 from bracegrid.model import CostCatalogue, Frame, Member, MemberKind, Project, Supports, layout_cost
 from bracegrid.optimize.bays import Additions, BayTable, bay_table, money
 from bracegrid.optimize.cutloop import LoopReport, solve_with_cuts
 from bracegrid.optimize.diagnosis import infeasible_reasons
+from bracegrid.optimize.general import complete_version, optimize_general
 from bracegrid.optimize.patterns import PatternKind, closed_form_cost
 from bracegrid.optimize.results import (
     MAX_REDUNDANCY,
@@ -103,6 +105,8 @@ def optimize_frame(
     if not 0 <= k <= MAX_REDUNDANCY:
         msg = f"frame {frame.name!r}: redundancy {k} is outside 0..{MAX_REDUNDANCY}; ask for fewer member losses"
         raise InputError(msg)
+    if not frame.is_complete:
+        return _optimize_general(frame, costs, options=options, on_progress=on_progress)
     kept = tuple(frame.members)
     table = bay_table(frame, costs, kept, allow)
     reasons = infeasible_reasons(frame, table, allow, k)
@@ -128,6 +132,21 @@ def optimize_frame(
     return _finish(frame, costs, table, found, k, start)
 
 
+def _optimize_general(
+    frame: Frame, costs: CostCatalogue, *, options: SolveOptions, on_progress: Progress | None
+) -> FrameSolution:
+    """A general frame: the complete grid's optimum (same open bays) as bound and first try, then mechanism cuts."""
+    share = dataclasses.replace(options, time_limit=0.3 * options.time_limit, redundancy=0)
+    try:
+        floor = optimize_frame(complete_version(frame), costs, options=share)
+    except (InfeasibleError, SolverLimitError):
+        floor = None
+    bound = 0 if floor is None else round(100 * (floor.bound - layout_cost(frame, costs, frame.members)))
+    hint = () if floor is None else tuple(m for m in floor.members if not m.existing)
+    return optimize_general(frame, costs, options=options, on_progress=on_progress,
+                            lower_bound_cents=max(0, bound), hint=hint)  # fmt: skip
+
+
 def _solve(
     frame: Frame,
     table: BayTable,
@@ -137,7 +156,7 @@ def _solve(
     deadline: float,
     report: Callable[[str, int | None, int], None],
 ) -> _Found:
-    if redundancy_of(frame, frame.members) >= k:
+    if redundancy_any(frame, frame.members) >= k:
         report("kept members suffice", 0, 0)
         return _Found(Additions.empty(table.rows, table.cols), 0, True, SolveMethod.KEPT)
     if frame.supports is Supports.BASE:
@@ -261,8 +280,8 @@ def _finish(
     kept = tuple(frame.members)
     new = add.members(table)
     members = kept + tuple(sorted(new, key=lambda m: m.sort_key))
-    verdict = check_layout(frame, members)
-    achieved = redundancy_of(frame, members) if verdict.stable else -1
+    verdict = check_any(frame, members)
+    achieved = redundancy_any(frame, members) if verdict.stable else -1
     if not verdict.stable or achieved < k:
         msg = (
             f"internal error: the optimizer produced a layout for frame {frame.name!r} that fails the "

@@ -32,6 +32,8 @@ class SolveMethod(Enum):
     """CP-SAT on the cut model with lazily separated directed cuts."""
     LP_CUTS = "lp-cuts"
     """The LP relaxation of the cut model (cuts separated on fractional points) and its dive; no CP-SAT round."""
+    MECHANISM_CUTS = "mechanism-cuts"
+    """A general frame: HiGHS MILP rounds with cuts from mechanisms (exact check) and from the digraph."""
 
 
 class SolveStatus(Enum):
@@ -85,6 +87,9 @@ def method_how(method: SolveMethod, *, pattern: PatternKind | None = None, round
         return f"closed form: {pattern.words if pattern is not None else 'complete frame'}"
     if method is SolveMethod.CUT_LOOP:
         return f"CP-SAT directed cuts ({_count(rounds, 'round')}, {_count(cuts, 'cut')})"
+    if method is SolveMethod.MECHANISM_CUTS:
+        counts = f"{_count(rounds, 'round')}, {_count(cuts, 'cut')}"
+        return f"HiGHS MILP with mechanism and directed cuts, exact check ({counts})"
     return _METHOD_WORDS[method]
 
 

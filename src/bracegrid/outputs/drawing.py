@@ -6,7 +6,7 @@ model space is in millimetres (``$INSUNITS`` = 4) at true size; annotation is
 sized in paper millimetres times the sheet scale. Layers, symbols and the
 bill's columns are documented in docs/drawings.md.
 
-Every frame is re-checked with :func:`bracegrid.analysis.check_frame` before
+Every frame is re-checked with :func:`bracegrid.mechanics.check_frame_any` before
 it is drawn: the verdict, loose parts and critical members on the sheet come
 from that check, never from the caller.
 """
@@ -23,9 +23,10 @@ from typing import TYPE_CHECKING
 from shapely.geometry import Point
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, Verdict, check_frame
+from bracegrid.analysis import CAUTION, Flex, Verdict
 from bracegrid.errors import ExportError
 from bracegrid.io import write_bytes_atomic
+from bracegrid.mechanics import check_frame_any
 from bracegrid.model import (
     Diagonal,
     Frame,
@@ -39,11 +40,13 @@ from bracegrid.model import (
     bays_blocked_by,
     blocked_bays,
     opening_polygon,
+    present_grid_bars,
 )
 from bracegrid.outputs.bill import Bom, build_bom
 from bracegrid.outputs.layers import Layer, member_layer
 from bracegrid.outputs.markers import MarkerKind, place_markers
 from bracegrid.outputs.sheet import (
+    ABSENT_RGB,
     GAP,
     H_SMALL,
     H_TITLE,
@@ -115,7 +118,31 @@ def plan_frame(frame: Frame) -> FrameSheet:
         >>> plan_frame(Frame("f", (3000,), (2000,))).verdict.stable
         False
     """
-    return FrameSheet(frame=frame, verdict=check_frame(frame), blocked=blocked_bays(frame))
+    return FrameSheet(frame=frame, verdict=check_frame_any(frame), blocked=blocked_bays(frame))
+
+
+def deflected_shape(frame: Frame, flex: Flex) -> list[tuple[tuple[float, float], tuple[float, float]]]:
+    """Every present grid bar and member of a general frame that its mechanism moves, moved and exaggerated.
+
+    The largest node move is drawn as a quarter of the smallest bay side (a first-order flex has
+    no size of its own: only its shape and sense mean something).
+    """
+    xs, ys = frame.x_lines(), frame.y_lines()
+    amp = 0.25 * min(min(frame.widths), min(frame.heights))
+    move = {(m.p, m.q): (m.dx, m.dy) for m in flex.moves}
+
+    def spot(p: int, q: int) -> tuple[float, float]:
+        dx, dy = move.get((p, q), (0.0, 0.0))
+        return (xs[q] + amp * dx, ys[p] + amp * dy)
+
+    pairs = [bar.ends() for bar in present_grid_bars(frame)]
+    for m in frame.members:
+        if m.diagonal is Diagonal.RISING:
+            pairs.append(((m.row - 1, m.col - 1), (m.row, m.col)))
+        else:
+            pairs.append(((m.row, m.col - 1), (m.row - 1, m.col)))
+    # only what moves: a bar that stays put is already drawn as itself
+    return [(spot(*a), spot(*b)) for a, b in pairs if a in move or b in move]
 
 
 def part_tag(index: int) -> str:
@@ -264,7 +291,10 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
         for c in part.columns:
             add_hatch(msp, [at(xs[c - 1], 0), at(xs[c], 0), at(xs[c], h), at(xs[c - 1], h)], Layer.LOOSE,
                       scale=scale, pattern=False)  # fmt: skip
-    for r, c in sorted(fs.blocked):
+    for r, c in sorted(f.absent):
+        add_hatch(msp, [at(xs[c - 1], ys[r - 1]), at(xs[c], ys[r - 1]), at(xs[c], ys[r]), at(xs[c - 1], ys[r])],
+                  Layer.ABSENT, scale=scale, pattern=False, rgb=ABSENT_RGB)  # fmt: skip
+    for r, c in sorted(fs.blocked - f.absent):
         add_hatch(msp, [at(xs[c - 1], ys[r - 1]), at(xs[c], ys[r - 1]), at(xs[c], ys[r]), at(xs[c - 1], ys[r])],
                   Layer.OPENING_PATT, scale=scale, pattern=True)  # fmt: skip
     # grid lines (extended into the margins) and the bars
@@ -273,10 +303,18 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
         msp.add_line(at(x, -ext), at(x, h + ext), dxfattribs={"layer": Layer.GRID.layer_name})
     for y in ys:
         msp.add_line(at(-ext, y), at(w + ext, y), dxfattribs={"layer": Layer.GRID.layer_name})
-    for x in xs:
-        msp.add_line(at(x, 0), at(x, h), dxfattribs={"layer": Layer.FRAME.layer_name})
-    for y in ys:
-        msp.add_line(at(0, y), at(w, y), dxfattribs={"layer": Layer.FRAME.layer_name})
+    if f.is_complete:
+        for x in xs:
+            msp.add_line(at(x, 0), at(x, h), dxfattribs={"layer": Layer.FRAME.layer_name})
+        for y in ys:
+            msp.add_line(at(0, y), at(w, y), dxfattribs={"layer": Layer.FRAME.layer_name})
+    else:
+        for bar in present_grid_bars(f):
+            (p0, q0), (p1, q1) = bar.ends()
+            msp.add_line(at(xs[q0], ys[p0]), at(xs[q1], ys[p1]), dxfattribs={"layer": Layer.FRAME.layer_name})
+        for bar in sorted(f.missing):
+            (p0, q0), (p1, q1) = bar.ends()
+            msp.add_line(at(xs[q0], ys[p0]), at(xs[q1], ys[p1]), dxfattribs={"layer": Layer.FRAME_OMIT.layer_name})
     # opening outlines above the bars, set in from the edge
     for opening in f.openings:
         pts = outline_points(opening, inset_mm=_OUTLINE_INSET * scale)
@@ -286,6 +324,9 @@ def _draw_frame(msp: Modelspace, fs: FrameSheet, origin: tuple[float, float], sc
         a, b = member_endpoints(f, m)
         layer = member_layer(brace=m.kind is MemberKind.BRACE, existing=m.existing)
         msp.add_line(at(*a), at(*b), dxfattribs={"layer": layer.layer_name})
+    if v.flex is not None:
+        for a, b in deflected_shape(f, v.flex):
+            msp.add_line(at(*a), at(*b), dxfattribs={"layer": Layer.FLEX.layer_name})
     for marker in place_markers(f, v.critical_members, scale=scale).markers:
         name, layer = _MARKER_BLOCKS[marker.kind]
         pen.block(name, marker.x, marker.y, layer, size=marker.size)
@@ -434,7 +475,8 @@ def build_drawing(project: Project, *, frames: Sequence[Frame] | None = None, wh
     chosen = tuple(project.frames if frames is None else frames)
     sheets = tuple(plan_frame(f) for f in chosen)
     bom = build_bom(project, frames=chosen)
-    legend, bill, title = legend_size(), bill_size(bom), title_size()
+    general = any(not f.is_complete for f in chosen)
+    legend, bill, title = legend_size(general=general), bill_size(bom), title_size()
     band = (legend[0] + bill[0] + title[0] + 2 * GAP, max(legend[1], bill[1], title[1]))
     plan = plan_sheet([_box(s) for s in sheets], band)
     scale = plan.scale
@@ -451,7 +493,7 @@ def build_drawing(project: Project, *, frames: Sequence[Frame] | None = None, wh
     pen.rect(5.0, 5.0, paper_w - 10.0, paper_h - 10.0, Layer.TITLE)
     bx, by = plan.band
     room = paper_w - 2 * bx
-    draw_legend(pen, bx, by)
+    draw_legend(pen, bx, by, general=general)
     title_x = bx + room - title[0]
     bill_x = bx + legend[0] + (title_x - bx - legend[0] - bill[0]) / 2
     draw_bill(pen, bom, bill_x, by)

@@ -14,9 +14,9 @@ from collections.abc import Sequence
 from datetime import date
 
 from bracegrid._version import __version__
-from bracegrid.analysis import CAUTION, check_frame
+from bracegrid.analysis import CAUTION
 from bracegrid.compare import Comparison, FrameComparison, StrategyKey, StrategyResult, StrategyRobustness
-from bracegrid.mechanics import FrameForces
+from bracegrid.mechanics import FrameForces, check_frame_any
 from bracegrid.model import Frame, Project
 from bracegrid.outputs.bill import FrameBom, build_bom
 from bracegrid.outputs.figure import frame_svg, legend_html, symbol_defs
@@ -144,7 +144,7 @@ def _strategy_section(project: Project, fc: FrameComparison, s: StrategyResult) 
     title = f"<h3>{_e(fc.frame.name)}: {_e(s.key.title)}</h3>"
     if s.frame is None:
         return f"{title}<p class=bad>No layout: {_e(s.note)}</p>"
-    verdict = check_frame(s.frame)  # the figure shows what the stability check finds, not what was claimed
+    verdict = check_frame_any(s.frame)  # the figure shows what the stability check finds, not what was claimed
     bom = build_bom(project, frames=[s.frame]).frames[0]
     caption = (
         f"{counts_words(s.braces, s.ties)} ({s.added_braces + s.added_ties} added), cost {_money(s.cost)}; "

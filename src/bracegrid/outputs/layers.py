@@ -80,6 +80,13 @@ class Layer(Enum):
     OPENING = LayerSpec("S-OPNG", 94, "BG_EDGE", 35, "opening outlines (set in from the opening's edge)", _MAJOR)
     OPENING_PATT = LayerSpec("S-OPNG-PATT", 8, "Continuous", 18, "hatching of blocked bays", _MAJOR)
     OPENING_LABEL = LayerSpec("S-OPNG-IDEN", 7, "Continuous", 25, "opening names and blocked-bay labels", _MAJOR)
+    FRAME_OMIT = LayerSpec(
+        "S-FRAM-OMIT", 8, "BG_OMIT", 25, "grid bar segments left out (missing ledgers and standards)", _BOTH
+    )
+    ABSENT = LayerSpec("S-FRAM-ABSN", 9, "Continuous", 13, "bays outside the frame's outline (absent)", _BOTH)
+    FLEX = LayerSpec(
+        "S-ANNO-FLEX", 30, "Continuous", 35, "exaggerated deflected shape of a mechanism (general frames)", _MINOR
+    )
     LOOSE = LayerSpec("S-ANNO-LOOS", 30, "Continuous", 13, "shading and tags of loose parts (unstable frames)", _MINOR)
     SUPPORT = LayerSpec("S-FNDN", 7, "Continuous", 50, "ground line under a pinned base")
     SUPPORT_SYMBOL = LayerSpec("S-FNDN-SYMB", 7, "Continuous", 25, "pinned-support symbols")

@@ -16,11 +16,13 @@ from bracegrid.analysis import (
     ROBUSTNESS_LIMITS,
     Addition,
     AdditionAdvice,
+    Flex,
     Robustness,
     Verdict,
     addition_words,
     anchor_words,
     describe_part,
+    flex_words,
 )
 from bracegrid.compare import Comparison, StrategyKey
 from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
@@ -66,6 +68,17 @@ def verdict_dict(verdict: Verdict) -> dict[str, Any]:
         "ties": verdict.ties,
         "maxwell": {"count": verdict.maxwell_count, "needed": verdict.maxwell_needed},
         "removed": [member_dict(m) for m in verdict.removed],
+        "method": verdict.method.value,
+    } | ({"mechanism": flex_dict(verdict.flex)} if verdict.flex is not None else {})
+
+
+def flex_dict(flex: Flex) -> dict[str, Any]:
+    """A general frame's mechanism as JSON: words, moving nodes (largest move 1) and racking bays."""
+    return {
+        "description": flex_words(flex),
+        "exact": flex.exact,
+        "nodes": [{"p": m.p, "q": m.q, "dx": round(m.dx, 6), "dy": round(m.dy, 6)} for m in flex.moves],
+        "bays": [{"row": b.row, "col": b.col, "direction": b.racking.value} for b in flex.bays],
     }
 
 
@@ -339,7 +352,17 @@ def editor_frame_dict(frame: Frame, unit: str) -> dict[str, Any]:
         "openings": [{"name": o.name, "polygon_mm": [list(p) for p in o.polygon]} for o in frame.openings],
         "members": [optimize_member_dict(m) for m in frame.members],
         "load_cases": [c.name for c in frame.loads],
-    }
+    } | ({"general": True, "general_note": general_note(frame)} if not frame.is_complete else {})
+
+
+def general_note(frame: Frame) -> str:
+    """What the editor says about a general frame: it is checked exactly but shown read-only."""
+    bars = ", ".join(b.label for b in sorted(frame.missing)) or "none"
+    return (
+        f"Frame {frame.name!r} has missing grid bars ({bars}) or absent bays: the editor checks it exactly "
+        "but shows it read-only (it does not draw missing bars); edit it in the project file, or draw it "
+        "with bracegrid draw."
+    )
 
 
 def editor_project_dict(project: Project, *, version: str, file_name: str) -> dict[str, Any]:

@@ -234,6 +234,10 @@ class Pen:
 
 # --------------------------------------------------------------------------- legend
 
+#: Fill of absent bays: a light grey, so they read as "not part of the frame" beside the pale
+#: orange of loose parts.
+ABSENT_RGB = (228, 228, 228)
+
 #: Height of a legend row, paper mm, by sample (marker samples need more room than line samples).
 _LEGEND_ROW = 4.2
 _LEGEND_TALL = {"cw": 6.0, "acw": 6.0, "crit": 6.0, "support": 5.6, "bay": 5.6, "blocked": 5.0, "opening": 5.0}
@@ -257,39 +261,47 @@ _LEGEND_ROWS: tuple[tuple[str, str], ...] = (
     ("support", "pinned support on the ground line"),
     ("bay", "bay tags: R = row of bays (R1 at the bottom), C = column"),
 )
+#: Rows added when a sheet holds a general frame (missing grid bars, an outline).
+_GENERAL_ROWS: tuple[tuple[str, str], ...] = (
+    ("omitted", "grid bar left out (missing ledger or standard)"),
+    ("absent", "absent bay: outside the frame's outline"),
+    ("flex", "mechanism: exaggerated deflected shape (not to scale)"),
+)
 
 
-def legend_rows() -> tuple[tuple[str, str, float], ...]:
+def legend_rows(*, general: bool = False) -> tuple[tuple[str, str, float], ...]:
     """The legend's rows: key, words and row height (paper mm), top to bottom.
 
     Example:
         >>> [key for key, _, _ in legend_rows()][:3]
         ['brace-new', 'brace-old', 'tie-new']
     """
-    return tuple((key, words, _LEGEND_TALL.get(key, _LEGEND_ROW)) for key, words in _LEGEND_ROWS)
+    rows = _LEGEND_ROWS + (_GENERAL_ROWS if general else ())
+    return tuple((key, words, _LEGEND_TALL.get(key, _LEGEND_ROW)) for key, words in rows)
 
 
-def legend_size() -> tuple[float, float]:
-    """Width and height of the legend, paper mm."""
-    width = 3.0 + _SAMPLE_W + 3.0 + max(text_width(words, H_SMALL) for _, words in _LEGEND_ROWS) + 3.0
-    return (width, 9.0 + sum(step for _, _, step in legend_rows()))
+def legend_size(*, general: bool = False) -> tuple[float, float]:
+    """Width and height of the legend, paper mm (``general``: with the rows of general frames)."""
+    rows = legend_rows(general=general)
+    width = 3.0 + _SAMPLE_W + 3.0 + max(text_width(words, H_SMALL) for _, words, _ in rows) + 3.0
+    return (width, 9.0 + sum(step for _, _, step in rows))
 
 
-def draw_legend(pen: Pen, x: float, y: float) -> None:
+def draw_legend(pen: Pen, x: float, y: float, *, general: bool = False) -> None:
     """The legend with its bottom-left corner at paper (x, y).
 
     Samples sit on the legend layer with the look of the layer they explain, so the
     drawing layers hold only what is drawn on the frames. Each sample stays inside its
     own row (tests check that no two samples overlap).
     """
-    w, h = legend_size()
+    w, h = legend_size(general=general)
     lay = Layer.LEGEND
     pen.rect(x, y, w, h, lay)
     pen.text("LEGEND", x + 2, y + h - 4.5, height=H_LABEL, layer=lay)
     cy = y + h - 7.0
     x0, x1 = x + 3, x + 3 + _SAMPLE_W
     mid = (x0 + x1) / 2
-    for key, words, step in legend_rows():
+    for key, words, step in legend_rows(general=general):
         cy -= step / 2
         top, bottom = cy + step / 2 - 0.5, cy - step / 2 + 0.5
         if key in {"brace-new", "brace-old", "tie-new", "tie-old"}:
@@ -297,6 +309,15 @@ def draw_legend(pen: Pen, x: float, y: float) -> None:
             pen.line((x0, cy), (x1, cy), lay, **_look(layer))
         elif key == "bar":
             pen.line((x0, cy), (x1, cy), lay, **_look(Layer.FRAME))
+        elif key == "omitted":
+            pen.line((x0, cy), (x1, cy), lay, **_look(Layer.FRAME_OMIT))
+        elif key == "absent":
+            pts = [(x0, bottom), (x1, bottom), (x1, top), (x0, top)]
+            add_hatch(pen.msp, [pen.at(*p) for p in pts], Layer.LEGEND, scale=pen.scale, pattern=False,
+                      color=Layer.ABSENT.spec.color, rgb=ABSENT_RGB)  # fmt: skip
+        elif key == "flex":
+            pen.line((x0, bottom + 0.3), (mid, top - 0.3), lay, **_look(Layer.FLEX))
+            pen.line((mid, top - 0.3), (x1, bottom + 0.3), lay, **_look(Layer.FLEX))
         elif key == "grid":
             pen.line((x0, cy), (x1, cy), lay, **_look(Layer.GRID))
         elif key in {"cw", "acw", "crit"}:
@@ -351,14 +372,16 @@ def add_hatch(
     scale: float,
     pattern: bool,
     color: int = 256,
+    rgb: tuple[int, int, int] = (255, 226, 190),
 ) -> None:
-    """A hatch over a polygon (model points): our 45-degree blocked-bay pattern, or a pale fill."""
+    """A hatch over a polygon (model points): our 45-degree blocked-bay pattern, or a pale fill
+    (``rgb``: pale orange for loose parts, :data:`ABSENT_RGB` for absent bays)."""
     hatch = msp.add_hatch(color=color, dxfattribs={"layer": layer.layer_name})
     if pattern:
         # pattern type 2 (custom): the definition travels inside the hatch, named as ours
         hatch.set_pattern_fill(BLOCKED_PATTERN, color=color, pattern_type=2, definition=blocked_pattern(scale))
     else:
-        hatch.rgb = (255, 226, 190)  # light: prints as a pale grey in black and white
+        hatch.rgb = rgb  # light: prints as a pale grey in black and white
     hatch.paths.add_polyline_path(points, is_closed=True)
 
 

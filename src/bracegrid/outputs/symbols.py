@@ -53,6 +53,7 @@ _LINETYPES: dict[str, tuple[str, tuple[float, ...]]] = {
     "BG_TIE": ("tie: dashes", (3.0, -1.2)),
     "BG_CHAIN": ("grid: long dash, short dash", (6.0, -1.2, 1.0, -1.2)),
     "BG_EDGE": ("opening edge: short dashes", (1.5, -0.8)),
+    "BG_OMIT": ("omitted grid bar: dots and short dashes", (0.8, -0.8, 0.0, -0.8)),
 }
 
 _BLOCK_ATTRIBS: dict[str, Any] = {"layer": "0", "color": 0, "lineweight": -2}

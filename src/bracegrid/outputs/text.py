@@ -13,11 +13,13 @@ from bracegrid.analysis import (
     CAUTION,
     ROBUSTNESS_LIMITS,
     AdditionAdvice,
+    CheckMethod,
     Robustness,
     Verdict,
     addition_words,
     anchor_words,
     describe_part,
+    flex_words,
     redundancy_words,
 )
 from bracegrid.compare import Comparison, StrategyKey
@@ -58,12 +60,14 @@ def render_check(
         additions: For unstable frames (by name), the single additions that lock the most loose parts.
     """
     table = Table(title=f"Stability check: {project_name}", title_justify="left")
-    for head in ("frame", "verdict", "racking modes", "braces", "ties", "weighted count", "least needed", "critical"):
+    for head in ("frame", "verdict", "method", "racking modes", "braces", "ties", "weighted count", "least needed",
+                 "critical"):  # fmt: skip
         table.add_column(head, justify="left" if head in {"frame", "verdict"} else "right")
     for v in verdicts:
         table.add_row(
             v.frame,
             "STABLE" if v.stable else "NOT STABLE",
+            v.method.value,
             str(v.racking_modes),
             str(v.braces),
             str(v.ties),
@@ -75,6 +79,12 @@ def render_check(
     lines.append(
         "weighted count = braces + ties/2 (a tie holds one racking sense, half a brace); least needed = the "
         "weighted count every stable layout reaches (rows + columns - 1; rows on a pinned base)"
+        + (
+            "; method exact (missing grid bars or an outline): least needed = degrees of freedom left by the "
+            "grid bars and supports, the rank a rigid layout's members must reach"
+            if any(v.method is CheckMethod.EXACT for v in verdicts)
+            else ""
+        )
     )
     for v in verdicts:
         if v.removed:
@@ -82,6 +92,8 @@ def render_check(
         anchor = anchor_words(v)
         for part in v.loose_parts:
             lines.append(f"{v.frame}: {describe_part(part, anchor)}")
+        if v.flex is not None:
+            lines.append(f"{v.frame}: {flex_words(v.flex)}")
         if v.critical_members:
             lines.append(f"{v.frame}: critical (single loss makes it unstable): {_members_text(v.critical_members)}")
         advice = (additions or {}).get(v.frame)

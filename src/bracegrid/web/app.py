@@ -24,10 +24,9 @@ from starlette.requests import Request
 from starlette.responses import JSONResponse, Response, StreamingResponse
 from starlette.routing import Route
 
-from bracegrid.analysis import check_frame
 from bracegrid.errors import BraceGridError, ExportError, InputError, NumericalError
 from bracegrid.io import parse_member_refs
-from bracegrid.mechanics import analyse_frame
+from bracegrid.mechanics import analyse_frame, check_frame_any
 from bracegrid.outputs.shapes import (
     editor_forces_dict,
     editor_project_dict,
@@ -149,7 +148,7 @@ async def check(request: Request) -> Response:
     def work() -> dict[str, Any]:
         frame = session.frame(req.frame)
         project = session.project
-        return live_check_dict(frame, check_frame(frame), project.costs, unit=project.length_unit)
+        return live_check_dict(frame, check_frame_any(frame), project.costs, unit=project.length_unit)
 
     payload = await asyncio.to_thread(work)
     payload["server_ms"] = round((time.perf_counter() - start) * 1000.0, 2)

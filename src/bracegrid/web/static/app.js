@@ -54,6 +54,8 @@
       openingBlocked: new Set(f.blocked_by_openings.map(([r, c]) => bayKey(r, c))),
       openings: f.openings,
       members,
+      general: Boolean(f.general),
+      generalNote: f.general_note || "",
       verdict: null,
       problems: [],
       size: null,
@@ -354,6 +356,7 @@
     renderVerdict(state.checkSeq);
     renderProblems();
     renderForces();
+    if (f.general) flash(f.generalNote);
     if (check) scheduleCheck();
   }
 
@@ -692,6 +695,7 @@
     if (evt.button !== 0) return;
     const hit = pointerBay(evt);
     if (!hit) return;
+    if (frame().general) { flash(frame().generalNote); return; }
     evt.preventDefault();
     $("grid").focus();
     state.cursor = { ...hit };
@@ -761,6 +765,7 @@
     if (mod && evt.key.toLowerCase() === "y") { evt.preventDefault(); redo(); return; }
     if (mod && evt.key.toLowerCase() === "s") { evt.preventDefault(); save(); return; }
     if (document.activeElement !== $("grid")) return;
+    if (frame().general) return;
     const f = frame();
     const c = state.cursor;
     const moves = { ArrowLeft: [0, -1], ArrowRight: [0, 1], ArrowUp: [1, 0], ArrowDown: [-1, 0] };
