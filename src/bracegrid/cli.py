@@ -229,6 +229,14 @@ def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
     return frozenset(kinds[n] for n in names)
 
 
+def _add_stability_only(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument(
+        "--stability-only", action="store_true",
+        help="ignore load cases, capacities and spreading rules: the cheapest stable layout (the price of "
+        "stability alone); the layouts are still checked against the loads and the result says so",
+    )  # fmt: skip
+
+
 def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     problems = _solver_problems(args)
     if args.redundancy is not None and args.redundancy < 0:
@@ -251,6 +259,7 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
         seed=args.seed,
         allow=_parse_allow(args.allow),
         redundancy=args.redundancy,
+        stability_only=args.stability_only,
     )
     live = sys.stderr if (not args.json and sys.stderr.isatty()) else None
 
@@ -364,7 +373,9 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
     folder = _flagged(
         "--out", lambda: check_out_folder(Path(args.out) if args.out else source.with_name(f"{source.stem}-compare"))
     )
-    options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
+    options = SolveOptions(
+        time_limit=args.time_limit, workers=args.workers, seed=args.seed, stability_only=args.stability_only
+    )
     total = len(frames) * len(StrategyKey)
     with _progress() as progress:
         task = progress.add_task("comparing", total=total)
@@ -497,6 +508,7 @@ def build_parser() -> argparse.ArgumentParser:
         "--redundancy", type=int, metavar="K",
         help="survive the loss of any K members (1 = N-1; default: each frame's 'redundancy')",
     )  # fmt: skip
+    _add_stability_only(opt)
     opt.set_defaults(handler=_cmd_optimize)
 
     frc = sub.add_parser(
@@ -533,6 +545,7 @@ def build_parser() -> argparse.ArgumentParser:
         "--samples", type=int, default=COMPARE_SAMPLES, metavar="N",
         help=f"Monte Carlo samples per robustness curve in the report (default {COMPARE_SAMPLES}; 0 leaves them out)",
     )  # fmt: skip
+    _add_stability_only(cmp_)
     cmp_.set_defaults(handler=_cmd_compare)
 
     rob = sub.add_parser(

@@ -21,6 +21,7 @@ from shapely.geometry import box
 from shapely.validation import explain_validity
 
 import bracegrid.io.loads as loads
+import bracegrid.io.rules as rules
 from bracegrid.errors import InputError
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import read_robustness
@@ -45,7 +46,7 @@ _RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-} | loads.FRAME_KEYS  # fmt: skip
+} | loads.FRAME_KEYS | rules.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -489,6 +490,7 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
     for index, raw in enumerate(raw_frames):
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
+            got = rules.add_frame_rules(col, got, raw, where=f"frame {got.name!r}")
             frames.append(loads.add_frame_loads(col, got, raw, index=index, text=text))
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):

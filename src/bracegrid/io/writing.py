@@ -11,6 +11,7 @@ from bracegrid.io.atomic import write_text_atomic
 from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import robustness_table
+from bracegrid.io.rules import frame_rule_fields
 from bracegrid.model import CostRate, Frame, MemberKind, Project
 from bracegrid.units import MM_PER_UNIT
 
@@ -57,6 +58,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
             }
             for m in sorted(frame.members, key=lambda m: m.sort_key)
         ]
+    out.update(frame_rule_fields(frame))
     out.update(frame_load_fields(frame))
     return out
 

@@ -6,6 +6,7 @@ from bracegrid.model.geometry import bay_box, bays_blocked_by, blocked_bays, ope
 from bracegrid.model.kinds import Diagonal, Edge, LoadSense, MemberKind, Racking, Supports
 from bracegrid.model.loads import GridStrength, LoadCase, MemberStrength, StrengthCatalogue
 from bracegrid.model.losses import LossLikelihood
+from bracegrid.model.rules import RULE_FIELDS, SpreadRules
 
 __all__ = [
     "CostCatalogue",
@@ -22,7 +23,9 @@ __all__ = [
     "MemberStrength",
     "Opening",
     "Project",
+    "RULE_FIELDS",
     "Racking",
+    "SpreadRules",
     "StrengthCatalogue",
     "Supports",
     "bay_box",

@@ -14,6 +14,7 @@ from bracegrid.model.costs import CostCatalogue
 from bracegrid.model.kinds import Diagonal, Edge, MemberKind, Supports
 from bracegrid.model.loads import LoadCase, StrengthCatalogue
 from bracegrid.model.losses import LossLikelihood
+from bracegrid.model.rules import SpreadRules
 from bracegrid.units import cut_length_mm, diagonal_mm
 
 
@@ -85,6 +86,7 @@ class Frame:
         loads: Load cases for the member-force analysis (none: stability only).
         held_edges: Edges a wall line under them holds along their own direction (plan grids,
             ``supports`` free); they enter the force analysis only.
+        rules: Bracing-spread rules the optimizer follows (none by default).
     """
 
     name: str
@@ -99,6 +101,7 @@ class Frame:
     redundancy: int = 0
     loads: tuple[LoadCase, ...] = ()
     held_edges: frozenset[Edge] = frozenset()
+    rules: SpreadRules = SpreadRules()
 
     @property
     def rows(self) -> int:

@@ -34,7 +34,7 @@ from bracegrid.model import (
     layout_cost,
     layout_length_mm,
 )
-from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution
+from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution, StrengthCheck
 from bracegrid.units import length_in_unit, metres
 
 
@@ -215,6 +215,35 @@ def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue | None = N
         "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
         "removed": [member_dict(m) for m in solution.verdict.removed],
         "members": [optimize_member_dict(m, solution.frame, costs) for m in solution.members],
+        **strength_dicts(solution.strength),
+    }
+
+
+def strength_dicts(check: StrengthCheck | None) -> dict[str, Any]:
+    """The fixed keys ``carries_loads``, ``utilisation`` (null without load cases) and the per-case checks.
+
+    Example:
+        >>> strength_dicts(None)
+        {'carries_loads': None, 'utilisation': None, 'strength_cases': []}
+    """
+    if check is None:
+        return {"carries_loads": None, "utilisation": None, "strength_cases": []}
+    return {
+        "carries_loads": {"plastic": check.plastic_ok, "elastic": check.elastic_ok},
+        "utilisation": {"plastic": _r(check.plastic_max), "elastic": _r(check.elastic_max)},
+        "strength_cases": [
+            {
+                "case": c.title,
+                "plastic": _r(c.plastic),
+                "plastic_member": c.plastic_member,
+                "elastic": _r(c.elastic),
+                "elastic_member": c.elastic_member,
+                "elastic_ok": c.elastic_ok,
+            }
+            for c in check.cases
+        ],
+        "strength_words": check.words,
+        "searched_with_loads": check.searched,
     }
 
 

@@ -23,7 +23,7 @@ from bracegrid.analysis import (
 from bracegrid.compare import Comparison, StrategyKey
 from bracegrid.mechanics import FrameForces
 from bracegrid.model import Member, MemberKind
-from bracegrid.optimize import ProgressEvent, ProjectSolution
+from bracegrid.optimize import ProgressEvent, ProjectSolution, StrengthCheck
 from bracegrid.outputs.shapes import compare_rows, solution_counts
 from bracegrid.outputs.terms import COST, LENGTH, SAVING, STATUS, cents, money_text, saving_text
 from bracegrid.units import metres_text
@@ -202,6 +202,7 @@ def render_optimize(project_name: str, solution: ProjectSolution) -> str:
         lines.append(f"{s.frame.name}: {s.method_text}; {redundancy_words(s.redundancy)}")
         if new:
             lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")
+        lines += strength_lines(s.frame.name, s.strength)
         if s.verdict.critical_members:
             lines.append(
                 f"{s.frame.name}: critical (single loss makes it unstable): {len(s.verdict.critical_members)} member(s)"
@@ -209,6 +210,19 @@ def render_optimize(project_name: str, solution: ProjectSolution) -> str:
     lines.append("")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
+
+
+def strength_lines(name: str, check: StrengthCheck | None) -> list[str]:
+    """Which strength checks a layout passes and, per case, the governing member and its utilisation."""
+    if check is None:
+        return []
+    how = "" if check.searched else " (layout found for stability alone)"
+    out = [f"{name}: {check.words}{how}"]
+    for c in check.cases:
+        p = "none admissible" if c.plastic is None else f"{c.plastic:.2f}"
+        e = "-" if c.elastic is None else f"{c.elastic:.2f}"
+        out.append(f"  {c.title}: plastic {p} ({c.plastic_member}); elastic {e} ({c.elastic_member})")
+    return out
 
 
 def progress_line(event: ProgressEvent) -> str:

@@ -1,0 +1,439 @@
+"""Strength-aware layouts: a CP-SAT master over candidate members, cuts from the checks, elastic verification.
+
+The master chooses members (one per free diagonal at most, of an allowed kind) at least cost subject to
+the cuts found so far. Each answer is checked in turn, and the first check that fails adds cuts:
+
+1. stability: directed cuts (a pinned base: every lift needs k + 1 arcs each way, exactly, from the
+   start; a free frame: violated sets of :func:`bracegrid.optimize.separation.violated_cuts`);
+2. plastic capacity per load case and sense: on a pinned base the per-lift cut-set inequalities
+   and their rounded forms are in the master from the start; a free frame's are separated by one
+   maximum flow per case; then the LP with every grid-bar limit, whose Farkas ray is a Benders
+   feasibility cut (:mod:`bracegrid.optimize.capacity`);
+3. elastic: the tension-only analysis of :mod:`bracegrid.mechanics`; a layout it finds over
+   capacity is excluded exactly (a no-good cut on that one layout) and the master solved again.
+
+The spreading rules are linear rows in the master (:mod:`bracegrid.optimize.rules`). Every cut
+is valid for every layout that passes the checks, so the master's bound is a proven lower bound
+on the cost of any layout passing them all; an answer that passes them all at a proven master
+optimum is optimal.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from bracegrid.analysis.digraph import leaving_bays
+from bracegrid.errors import InfeasibleError, InputError
+from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
+from bracegrid.model import Diagonal, Frame, Member, MemberKind, MemberStrength, StrengthCatalogue, Supports
+from bracegrid.optimize.bays import Additions, BayTable
+from bracegrid.mechanics.motions import z_of_row
+from bracegrid.optimize.capacity import (
+    CARRY_REL,
+    CapacityCut,
+    Candidate,
+    PlasticFrame,
+    Utilisation,
+    arc_capacity,
+    farkas_cut,
+    flow_cut,
+    lift_cuts,
+    min_utilisation,
+    plastic_frame,
+)
+from bracegrid.optimize.cutmodel import configure
+from bracegrid.optimize.rules import RuleRow, rule_reasons, rule_rows
+from bracegrid.optimize.separation import violated_cuts
+
+Report = Callable[[str, int | None, int], None]
+
+#: Share of the time limit spent excluding elastically inadequate layouts one by one (exact) before
+#: the plastic model is asked for a margin instead.
+EXACT_SHARE = 0.4
+#: Capacity share the plastic model may use once the margin heuristic is on (measured on the demo:
+#: layouts at 90% plastic utilisation passed the elastic check after a few rounds).
+MARGIN = 0.9
+
+
+def _scaled_strength(strength: StrengthCatalogue, factor: float) -> StrengthCatalogue:
+    """Every capacity times ``factor`` (stiffness unchanged)."""
+
+    def times(v: float | None) -> float | None:
+        return None if v is None else v * factor
+
+    def member(m: MemberStrength) -> MemberStrength:
+        return dataclasses.replace(m, tension_kn=times(m.tension_kn), compression_kn=times(m.compression_kn))
+
+    g = strength.grid
+    grid = dataclasses.replace(g, standard_kn=times(g.standard_kn), ledger_kn=times(g.ledger_kn),
+                               uplift_kn=times(g.uplift_kn))  # fmt: skip
+    return StrengthCatalogue(brace=member(strength.brace), tie=member(strength.tie), grid=grid)
+
+
+@dataclass(frozen=True, slots=True)
+class StrengthFound:
+    """What the strength-aware search found.
+
+    Attributes:
+        members: The new members.
+        added: Their cost in cost units.
+        bound: Proven lower bound on the added cost of any layout passing every check.
+        proven: The layout is proven minimal among those passing every check it passes.
+        rounds: Master solves.
+        cuts: Cuts added (stability, capacity, elastic).
+        elastic_excluded: Layouts the elastic check turned down.
+    """
+
+    members: tuple[Member, ...]
+    added: int
+    bound: int
+    proven: bool
+    rounds: int
+    cuts: int
+    elastic_excluded: int
+
+
+def candidates_of(frame: Frame, table: BayTable, allow: frozenset[MemberKind]) -> list[Candidate]:
+    """Kept members first, then every new member the table allows (each kind on each free diagonal)."""
+    out = [Candidate(m.row, m.col, m.diagonal, m.kind, kept=True) for m in frame.members]
+    for i in range(1, table.rows + 1):
+        for j in range(1, table.cols + 1):
+            for d, free in ((Diagonal.RISING, table.rising_free), (Diagonal.FALLING, table.falling_free)):
+                if not free[i - 1, j - 1]:
+                    continue
+                if MemberKind.BRACE in allow and table.brace_ok[i - 1, j - 1]:
+                    out.append(Candidate(i, j, d, MemberKind.BRACE))
+                if table.tie_ok:
+                    out.append(Candidate(i, j, d, MemberKind.TIE))
+    return out
+
+
+def gives_up(c: Candidate) -> bool:
+    """The candidate gives the arc row -> col (a brace, or a rising tie)."""
+    return c.kind is MemberKind.BRACE or c.diagonal is Diagonal.RISING
+
+
+def gives_down(c: Candidate) -> bool:
+    """The candidate gives the arc col -> row (a brace, or a falling tie)."""
+    return c.kind is MemberKind.BRACE or c.diagonal is Diagonal.FALLING
+
+
+def additions_of(table: BayTable, cands: Sequence[Candidate], chosen: Sequence[bool]) -> Additions:
+    """Per-bay counts of the chosen new members (for the stability separation)."""
+    braces = np.zeros((table.rows, table.cols), dtype=np.int64)
+    rising = np.zeros_like(braces)
+    falling = np.zeros_like(braces)
+    for c, on in zip(cands, chosen, strict=True):
+        if on and not c.kept:
+            i, j = c.row - 1, c.col - 1
+            if c.kind is MemberKind.BRACE:
+                braces[i, j] += 1
+            elif c.diagonal is Diagonal.RISING:
+                rising[i, j] += 1
+            else:
+                falling[i, j] += 1
+    return Additions(braces, rising, falling)
+
+
+def unit_cost(table: BayTable, c: Candidate) -> int:
+    """Cost units of a new candidate (0 for a kept one)."""
+    if c.kept:
+        return 0
+    cost = table.brace_cost if c.kind is MemberKind.BRACE else table.tie_cost
+    return int(cost[c.row - 1, c.col - 1])
+
+
+def elastic_forces(frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]) -> FrameForces | None:
+    """The tension-only analysis of a layout under the frame's cases (None: a stiffness is missing)."""
+    if not frame.loads or missing_stiffness(frame, strength, members):
+        return None
+    return analyse_frame(frame, strength, members=members)
+
+
+class _Master:
+    """The CP-SAT master: one boolean per new candidate, the rows and cuts found so far."""
+
+    def __init__(self, frame: Frame, table: BayTable, cands: Sequence[Candidate], k: int) -> None:
+        from ortools.sat.python import cp_model  # heavy: imported where the model is built
+
+        self.cp = cp_model
+        self.model = cp_model.CpModel()
+        self.cands = tuple(cands)
+        self.table = table
+        self.k = k
+        self.x: dict[int, Any] = {}
+        for idx, c in enumerate(cands):
+            if not c.kept:
+                self.x[idx] = self.model.new_bool_var(f"x{idx}")
+        slots: dict[tuple[int, int, Diagonal], list[Any]] = {}
+        for idx, var in self.x.items():
+            c = cands[idx]
+            slots.setdefault((c.row, c.col, c.diagonal), []).append(var)
+        for group in slots.values():
+            if len(group) > 1:
+                self.model.add_at_most_one(group)
+        self.model.minimize(sum(unit_cost(table, cands[i]) * v for i, v in self.x.items()))
+        self.cuts = 0
+        need = k + 1
+        if frame.supports is Supports.BASE:
+            # A pinned base: every node set's cut is a sum of single-lift cuts (docs/theory.md).
+            for i in range(1, table.rows + 1):
+                kept_up, kept_down = int(table.exist_up[i - 1].sum()), int(table.exist_down[i - 1].sum())
+                ups = [v for j, v in self.x.items() if cands[j].row == i and gives_up(cands[j])]
+                downs = [v for j, v in self.x.items() if cands[j].row == i and gives_down(cands[j])]
+                self.model.add(sum(ups) >= need - kept_up)
+                self.model.add(sum(downs) >= need - kept_down)
+        else:
+            n = table.rows + table.cols
+            for v in range(n):
+                self.add_node_set(frozenset({v}))
+                self.add_node_set(frozenset(range(n)) - {v})
+
+    def add_node_set(self, s: frozenset[int]) -> None:
+        """At least k + 1 member arcs leave node set s."""
+        up, down = leaving_bays(self.table.rows, self.table.cols, s)
+        kept = int(self.table.exist_up[up].sum() + self.table.exist_down[down].sum())
+        terms = []
+        for idx, var in self.x.items():
+            c = self.cands[idx]
+            i, j = c.row - 1, c.col - 1
+            if (up[i, j] and gives_up(c)) or (down[i, j] and gives_down(c)):
+                terms.append(var)
+        self.model.add(sum(terms) >= self.k + 1 - kept)
+        self.cuts += 1
+
+    def add_cut(self, cut: CapacityCut) -> None:
+        """A capacity cut over the candidates."""
+        self.model.add(sum(c * self.x[k] for k, c in cut.terms if k in self.x) >= cut.need)
+        self.cuts += 1
+
+    def add_rule(self, row: RuleRow, kept_in: dict[tuple[int, int], int]) -> None:
+        """A spreading rule over bays."""
+        bays = set(row.bays)
+        kept = sum(kept_in.get(b, 0) for b in bays)
+        per_bay: dict[tuple[int, int], list[Any]] = {}
+        for idx, var in self.x.items():
+            c = self.cands[idx]
+            if (c.row, c.col) in bays:
+                per_bay.setdefault((c.row, c.col), []).append(var)
+        if row.braced_bays:
+            marks = []
+            for b in row.bays:
+                if kept_in.get(b, 0):
+                    marks.append(1)
+                elif b in per_bay:
+                    z = self.model.new_bool_var(f"braced{b}")
+                    self.model.add(z <= sum(per_bay[b]))
+                    marks.append(z)
+            if row.at_least is not None:
+                self.model.add(sum(marks) >= row.at_least)
+            return
+        count = sum(v for group in per_bay.values() for v in group)
+        if row.at_least is not None:
+            self.model.add(count >= row.at_least - kept)
+        if row.at_most is not None:
+            self.model.add(count <= row.at_most - kept)
+
+    def exclude(self, chosen: Sequence[bool]) -> None:
+        """Exactly this layout is no answer (the elastic check turned it down)."""
+        lits = [(1 - v) if chosen[i] else v for i, v in self.x.items()]
+        self.model.add(sum(lits) >= 1)
+        self.cuts += 1
+
+    def solve(self, *, seconds: float, workers: int, seed: int, hint: Sequence[bool] | None) -> tuple[str, list[bool], int]:
+        """(status word, chosen flags over every candidate, proven bound)."""
+        cp = self.cp
+        self.model.clear_hints()
+        if hint is not None:
+            for i, v in self.x.items():
+                self.model.add_hint(v, bool(hint[i]))
+        solver = cp.CpSolver()
+        configure(solver.parameters, workers=workers, seed=seed, seconds=seconds)
+        status = solver.solve(self.model)
+        if status == cp.INFEASIBLE:
+            return "infeasible", [], 0
+        if status not in (cp.OPTIMAL, cp.FEASIBLE):
+            return "unknown", [], 0
+        chosen = [c.kept for c in self.cands]
+        for i, v in self.x.items():
+            chosen[i] = bool(solver.value(v))
+        bound = int(math.ceil(solver.best_objective_bound - 1e-6))
+        return ("optimal" if status == cp.OPTIMAL else "feasible"), chosen, bound
+
+
+def strength_reasons(pf: PlasticFrame, table: BayTable) -> list[str]:
+    """Load cases that no layout can carry, in words (checked with every candidate present)."""
+    out: list[str] = []
+    frame = pf.frame
+    everything = [True] * len(pf.candidates)
+    if frame.supports is Supports.BASE:
+        for load in pf.loads:
+            for i in range(1, frame.rows + 1):
+                h = frame.heights[i - 1]
+                need = float(load.work[z_of_row(i)]) / h
+                side = 0 if need > 0 else 1
+                have = sum(
+                    arc_capacity(frame, c, float(pf.tension[k]), float(pf.compression[k]))[side] / h
+                    for k, c in enumerate(pf.candidates)
+                    if c.row == i
+                )
+                if abs(need) > have * (1 + CARRY_REL):
+                    blocked = int((table.free_slots[i - 1] == 0).sum())
+                    out.append(
+                        f"lift {i} needs {abs(need):.3g} kN of horizontal capacity in case {load.title}; with "
+                        f"{blocked} bay{'s' if blocked != 1 else ''} blocked the most it can hold is {have:.3g} kN"
+                    )
+    if out:
+        return out
+    for load in pf.loads:
+        u = min_utilisation(pf, load, everything)
+        if not u.carried:
+            if u.value is None:
+                out.append(f"case {load.title}: even with every open diagonal braced no force set balances the "
+                           "load within the limits given (check uplift_kn and the supports)")  # fmt: skip
+            else:
+                out.append(f"case {load.title}: even with every open diagonal braced the best force set loads "
+                           f"{u.governing} to {u.value:.2f} times its capacity")  # fmt: skip
+    return out
+
+
+def solve_strength(
+    frame: Frame,
+    strength: StrengthCatalogue,
+    table: BayTable,
+    allow: frozenset[MemberKind],
+    k: int,
+    *,
+    use_loads: bool,
+    deadline: float,
+    workers: int,
+    seed: int,
+    report: Report,
+) -> StrengthFound:
+    """The cheapest layout meeting stability, redundancy, rules and (with ``use_loads``) every load case.
+
+    Raises:
+        InfeasibleError: With reasons in words, when the rules or the loads rule every layout out.
+        InputError: When the time limit came before any layout passed the plastic checks.
+    """
+    cands = candidates_of(frame, table, allow)
+    rows = rule_rows(frame)
+    reasons = rule_reasons(frame, table, rows)
+    pf = plastic_frame(frame, strength, cands) if use_loads and frame.loads else None
+    if pf is not None:
+        reasons += strength_reasons(pf, table)
+    if reasons:
+        raise InfeasibleError([f"frame {frame.name!r}: {r}" for r in reasons])
+    master = _Master(frame, table, cands, k)
+    kept_in: dict[tuple[int, int], int] = {}
+    for m in frame.members:
+        kept_in[m.bay] = kept_in.get(m.bay, 0) + 1
+    for row in rows:
+        master.add_rule(row, kept_in)
+    if pf is not None:
+        for cut in lift_cuts(pf):
+            master.add_cut(cut)
+    best: list[bool] | None = None
+    best_cost: int | None = None
+    plastic_only: list[bool] | None = None
+    bound = 0
+    rounds = 0
+    excluded = 0
+    proven = False
+    elastic_needed = pf is not None and not missing_stiffness(frame, strength, [c.member for c in cands])
+    exact = True
+    margin: PlasticFrame | None = None
+    started = time.monotonic()
+    exact_until = started + EXACT_SHARE * max(0.0, deadline - started)
+    while True:
+        remaining = deadline - time.monotonic()
+        if remaining <= 0.01:
+            break
+        status, chosen, got_bound = master.solve(seconds=remaining, workers=workers, seed=seed, hint=best or plastic_only)
+        rounds += 1
+        if status == "infeasible":
+            if best is None and plastic_only is None:
+                words = [r.reason for r in rows][:3]
+                what = "; ".join(words) if words else "the load cases"
+                msg = (f"frame {frame.name!r}: no layout meets stability, the load cases and the spreading rules "
+                       f"together (for example {what}); relax a rule or clear more bays")  # fmt: skip
+                raise InfeasibleError([msg])
+            proven = best is not None and exact
+            if best_cost is not None and exact:
+                bound = best_cost
+            break
+        if status == "unknown":
+            break
+        cost = sum(unit_cost(table, c) for c, on in zip(cands, chosen, strict=True) if on)
+        if status == "optimal" and exact:
+            bound = max(bound, min(got_bound, cost))
+        sets = [] if frame.supports is Supports.BASE else violated_cuts(table, additions_of(table, cands, chosen), k)
+        for s in sets:
+            master.add_node_set(s)
+        cuts: list[CapacityCut] = []
+        if not sets and pf is not None:
+            for load in pf.loads:
+                flows = flow_cut(pf, load, chosen)
+                if flows:
+                    cuts += flows
+                    continue
+                got = farkas_cut(pf, load, chosen)
+                if got is not None:
+                    cuts.append(got)
+        for cut in cuts:
+            master.add_cut(cut)
+        report(f"strength cuts (round {rounds}, {master.cuts} cuts)", best_cost, bound)
+        if sets or cuts:
+            continue
+        if elastic_needed:
+            forces = elastic_forces(frame, strength, [c.member for c, on in zip(cands, chosen, strict=True) if on])
+            if forces is not None and not forces.ok:
+                if plastic_only is None:
+                    plastic_only = chosen
+                if status != "optimal":
+                    break
+                if margin is None and time.monotonic() >= exact_until:
+                    # The exact exclusions have not met an elastically adequate layout: ask the
+                    # plastic model for a margin from here on (a heuristic: the bound stays the
+                    # last exact one and the answer is not claimed optimal).
+                    margin = plastic_frame(frame, _scaled_strength(strength, MARGIN), cands)
+                    exact = False
+                if margin is not None:
+                    extra = [c for load in margin.loads if (c := farkas_cut(margin, load, chosen)) is not None]
+                    for cut in extra:
+                        master.add_cut(cut)
+                    if extra:
+                        continue
+                master.exclude(chosen)
+                excluded += 1
+                continue
+        if best_cost is None or cost < best_cost:
+            best, best_cost = chosen, cost
+        proven = status == "optimal" and exact
+        if proven:
+            bound = cost
+        break
+    pick = best if best is not None else plastic_only
+    if pick is None:
+        msg = f"frame {frame.name!r}: no layout passed the checks within the time limit; raise the time limit"
+        raise InputError(msg)
+    new = tuple(c.member for c, on in zip(cands, pick, strict=True) if on and not c.kept)
+    added = sum(unit_cost(table, c) for c, on in zip(cands, pick, strict=True) if on)
+    return StrengthFound(new, added, min(bound, added), proven and best is not None, rounds, master.cuts, excluded)
+
+
+def plastic_report(
+    frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]
+) -> tuple[Utilisation, ...]:
+    """The least utilisation of each case and sense of a layout (the plastic check)."""
+    cands = [Candidate(m.row, m.col, m.diagonal, m.kind, kept=True) for m in members]
+    pf = plastic_frame(frame, strength, cands)
+    chosen = [True] * len(cands)
+    return tuple(min_utilisation(pf, load, chosen) for load in pf.loads)
