@@ -9,6 +9,7 @@ from bracegrid.model.losses import LossLikelihood
 from bracegrid.model.rules import RULE_FIELDS, SpreadRules
 
 __all__ = [
+    "RULE_FIELDS",
     "CostCatalogue",
     "CostRate",
     "Diagonal",
@@ -23,7 +24,6 @@ __all__ = [
     "MemberStrength",
     "Opening",
     "Project",
-    "RULE_FIELDS",
     "Racking",
     "SpreadRules",
     "StrengthCatalogue",

@@ -101,7 +101,7 @@ class Frame:
     redundancy: int = 0
     loads: tuple[LoadCase, ...] = ()
     held_edges: frozenset[Edge] = frozenset()
-    rules: SpreadRules = SpreadRules()
+    rules: SpreadRules = SpreadRules()  # noqa: RUF009 - frozen, so one shared default is safe
 
     @property
     def rows(self) -> int:

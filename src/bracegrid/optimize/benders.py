@@ -32,13 +32,13 @@ import numpy as np
 from bracegrid.analysis.digraph import leaving_bays
 from bracegrid.errors import InfeasibleError, InputError
 from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
+from bracegrid.mechanics.motions import z_of_row
 from bracegrid.model import Diagonal, Frame, Member, MemberKind, MemberStrength, StrengthCatalogue, Supports
 from bracegrid.optimize.bays import Additions, BayTable
-from bracegrid.mechanics.motions import z_of_row
 from bracegrid.optimize.capacity import (
     CARRY_REL,
-    CapacityCut,
     Candidate,
+    CapacityCut,
     PlasticFrame,
     Utilisation,
     arc_capacity,
@@ -224,7 +224,7 @@ class _Master:
             if (c.row, c.col) in bays:
                 per_bay.setdefault((c.row, c.col), []).append(var)
         if row.braced_bays:
-            marks = []
+            marks: list[Any] = []
             for b in row.bays:
                 if kept_in.get(b, 0):
                     marks.append(1)
@@ -247,10 +247,12 @@ class _Master:
         self.model.add(sum(lits) >= 1)
         self.cuts += 1
 
-    def solve(self, *, seconds: float, workers: int, seed: int, hint: Sequence[bool] | None) -> tuple[str, list[bool], int]:
+    def solve(
+        self, *, seconds: float, workers: int, seed: int, hint: Sequence[bool] | None
+    ) -> tuple[str, list[bool], int]:
         """(status word, chosen flags over every candidate, proven bound)."""
         cp = self.cp
-        self.model.clear_hints()
+        self.model.clear_hints()  # type: ignore[no-untyped-call]
         if hint is not None:
             for i, v in self.x.items():
                 self.model.add_hint(v, bool(hint[i]))
@@ -264,7 +266,7 @@ class _Master:
         chosen = [c.kept for c in self.cands]
         for i, v in self.x.items():
             chosen[i] = bool(solver.value(v))
-        bound = int(math.ceil(solver.best_objective_bound - 1e-6))
+        bound = math.ceil(solver.best_objective_bound - 1e-6)
         return ("optimal" if status == cp.OPTIMAL else "feasible"), chosen, bound
 
 
@@ -356,7 +358,9 @@ def solve_strength(
         remaining = deadline - time.monotonic()
         if remaining <= 0.01:
             break
-        status, chosen, got_bound = master.solve(seconds=remaining, workers=workers, seed=seed, hint=best or plastic_only)
+        status, chosen, got_bound = master.solve(
+            seconds=remaining, workers=workers, seed=seed, hint=best or plastic_only
+        )
         rounds += 1
         if status == "infeasible":
             if best is None and plastic_only is None:
@@ -429,9 +433,7 @@ def solve_strength(
     return StrengthFound(new, added, min(bound, added), proven and best is not None, rounds, master.cuts, excluded)
 
 
-def plastic_report(
-    frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]
-) -> tuple[Utilisation, ...]:
+def plastic_report(frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]) -> tuple[Utilisation, ...]:
     """The least utilisation of each case and sense of a layout (the plastic check)."""
     cands = [Candidate(m.row, m.col, m.diagonal, m.kind, kept=True) for m in members]
     pf = plastic_frame(frame, strength, cands)

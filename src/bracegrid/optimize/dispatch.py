@@ -416,8 +416,9 @@ def optimize_project(
                 solutions.append(repaired)
             else:
                 solutions.append(
-                    optimize_frame(frame, project.costs, options=options, on_progress=on_progress,
-                                   strength=project.strength)  # fmt: skip
+                    optimize_frame(
+                        frame, project.costs, options=options, on_progress=on_progress, strength=project.strength
+                    )
                 )
         except InfeasibleError as exc:
             reasons.extend(exc.reasons)

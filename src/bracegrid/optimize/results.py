@@ -285,8 +285,10 @@ class StrengthCheck:
             'plastic check passes (0.80); elastic check FAILS (1.20): not adequate'
         """
         p = self.plastic_max
-        plastic = (f"plastic check passes ({p:.2f})" if self.plastic_ok else
-                   "plastic check FAILS" + (f" ({p:.2f})" if p is not None else " (no admissible force set)"))  # fmt: skip
+        if self.plastic_ok:
+            plastic = f"plastic check passes ({p:.2f})"
+        else:
+            plastic = "plastic check FAILS" + (f" ({p:.2f})" if p is not None else " (no admissible force set)")
         if self.elastic_note:
             return f"{plastic}; elastic check not run ({self.elastic_note})"
         e = self.elastic_max
