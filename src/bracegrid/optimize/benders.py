@@ -42,11 +42,16 @@ from bracegrid.optimize.capacity import (
     PlasticFrame,
     Utilisation,
     arc_capacity,
+    cover_cut,
+    cut_from,
     farkas_cut,
+    farkas_ray,
     flow_cut,
     lift_cuts,
     min_utilisation,
     plastic_frame,
+    ray_images,
+    rounded_cut,
 )
 from bracegrid.optimize.cutmodel import configure
 from bracegrid.optimize.rules import RuleRow, rule_reasons, rule_rows
@@ -57,6 +62,18 @@ Report = Callable[[str, int | None, int], None]
 #: Share of the time limit spent excluding elastically inadequate layouts one by one (exact) before
 #: the plastic model is asked for a margin instead.
 EXACT_SHARE = 0.4
+#: Rounds between greedy repairs of a master answer into a layout that carries every case (an
+#: incumbent); the first answers are always repaired until one is found.
+REPAIR_EVERY = 5
+#: Relative gap at which a master solve stops: early rounds only need an answer to separate, and
+#: the bound stays proven; a layout found within the gap becomes the incumbent and the search goes
+#: on below it (measured on the 30 x 15 face: rounds 3x faster than solving each to optimality).
+MASTER_GAP = 0.01
+#: Add the cuts of every image of each Farkas ray (moved by whole bays, mirrored): measured on the
+#: uniform 30 x 15 face, without them the master moves the bracing one bay per round.
+USE_IMAGES = True
+#: Capacity shares the greedy repair tries in turn until its layout passes the elastic check too.
+REPAIR_MARGINS = (1.0, 0.85, 0.7, 0.55)
 #: Capacity share the plastic model may use once the margin heuristic is on (measured on the demo:
 #: layouts at 90% plastic utilisation passed the elastic check after a few rounds).
 MARGIN = 0.9
@@ -179,7 +196,8 @@ class _Master:
         for group in slots.values():
             if len(group) > 1:
                 self.model.add_at_most_one(group)
-        self.model.minimize(sum(unit_cost(table, cands[i]) * v for i, v in self.x.items()))
+        self.objective = sum(unit_cost(table, cands[i]) * v for i, v in self.x.items())
+        self.model.minimize(self.objective)
         self.cuts = 0
         need = k + 1
         if frame.supports is Supports.BASE:
@@ -241,6 +259,11 @@ class _Master:
         if row.at_most is not None:
             self.model.add(count <= row.at_most - kept)
 
+    def below(self, cost: int) -> None:
+        """Only layouts cheaper than ``cost`` are of use from now on (an incumbent costs that)."""
+        if not isinstance(self.objective, int):
+            self.model.add(self.objective <= cost - 1)
+
     def exclude(self, chosen: Sequence[bool]) -> None:
         """Exactly this layout is no answer (the elastic check turned it down)."""
         lits = [(1 - v) if chosen[i] else v for i, v in self.x.items()]
@@ -248,9 +271,13 @@ class _Master:
         self.cuts += 1
 
     def solve(
-        self, *, seconds: float, workers: int, seed: int, hint: Sequence[bool] | None
+        self, *, seconds: float, workers: int, seed: int, hint: Sequence[bool] | None, gap: float
     ) -> tuple[str, list[bool], int]:
-        """(status word, chosen flags over every candidate, proven bound)."""
+        """(status word, chosen flags over every candidate, proven bound).
+
+        The word is ``optimal`` (proven), ``gap`` (stopped within the relative gap), ``feasible``
+        (stopped by the time limit), ``infeasible`` or ``unknown``.
+        """
         cp = self.cp
         self.model.clear_hints()  # type: ignore[no-untyped-call]
         if hint is not None:
@@ -258,6 +285,7 @@ class _Master:
                 self.model.add_hint(v, bool(hint[i]))
         solver = cp.CpSolver()
         configure(solver.parameters, workers=workers, seed=seed, seconds=seconds)
+        solver.parameters.relative_gap_limit = gap
         status = solver.solve(self.model)
         if status == cp.INFEASIBLE:
             return "infeasible", [], 0
@@ -267,7 +295,9 @@ class _Master:
         for i, v in self.x.items():
             chosen[i] = bool(solver.value(v))
         bound = math.ceil(solver.best_objective_bound - 1e-6)
-        return ("optimal" if status == cp.OPTIMAL else "feasible"), chosen, bound
+        if status == cp.OPTIMAL:
+            return ("optimal" if bound >= round(solver.objective_value) else "gap"), chosen, bound
+        return "feasible", chosen, bound
 
 
 def strength_reasons(pf: PlasticFrame, table: BayTable) -> list[str]:
@@ -352,6 +382,9 @@ def solve_strength(
     elastic_needed = pf is not None and not missing_stiffness(frame, strength, [c.member for c in cands])
     exact = True
     margin: PlasticFrame | None = None
+    scaled: dict[float, PlasticFrame] = {}
+    seen: set[tuple[tuple[tuple[int, int], ...], int]] = set()
+    images = USE_IMAGES
     started = time.monotonic()
     exact_until = started + EXACT_SHARE * max(0.0, deadline - started)
     while True:
@@ -359,7 +392,7 @@ def solve_strength(
         if remaining <= 0.01:
             break
         status, chosen, got_bound = master.solve(
-            seconds=remaining, workers=workers, seed=seed, hint=best or plastic_only
+            seconds=remaining, workers=workers, seed=seed, hint=best or plastic_only, gap=MASTER_GAP
         )
         rounds += 1
         if status == "infeasible":
@@ -376,7 +409,8 @@ def solve_strength(
         if status == "unknown":
             break
         cost = sum(unit_cost(table, c) for c, on in zip(cands, chosen, strict=True) if on)
-        if status == "optimal" and exact:
+        solved = status in ("optimal", "gap")
+        if solved and exact:
             bound = max(bound, min(got_bound, cost))
         sets = [] if frame.supports is Supports.BASE else violated_cuts(table, additions_of(table, cands, chosen), k)
         for s in sets:
@@ -388,11 +422,48 @@ def solve_strength(
                 if flows:
                     cuts += flows
                     continue
-                got = farkas_cut(pf, load, chosen)
-                if got is not None:
-                    cuts.append(got)
+                ray = farkas_ray(pf, load, chosen)
+                if ray is None:
+                    continue
+                got = cut_from(pf, load, *ray)
+                if got is None or got.holds(chosen):
+                    got = cover_cut(pf, chosen, f"case {load.title}")
+                cuts.append(got)
+                fewest = rounded_cut(got)
+                if fewest is not None:
+                    cuts.append(fewest)
+                if images:
+                    for image in ray_images(pf, *ray):
+                        for other in pf.loads:
+                            more = cut_from(pf, other, *image)
+                            if more is not None and more.terms and more.key not in seen:
+                                seen.add(more.key)
+                                cuts.append(more)
         for cut in cuts:
             master.add_cut(cut)
+        if cuts and pf is not None and (best is None or rounds % REPAIR_EVERY == 0):
+            # An incumbent: repair the answer greedily until it carries every case, with a growing
+            # margin on the capacities until the elastic check passes too (heuristic; only the
+            # master proves anything).
+            for factor in REPAIR_MARGINS:
+                if factor not in scaled:
+                    scaled[factor] = plastic_frame(frame, _scaled_strength(strength, factor), cands)
+                met: list[CapacityCut] = []
+                fixed = _repair(scaled[factor], table, rows, chosen, deadline, met)
+                if factor == 1.0:
+                    for cut in met:  # cuts of the real model: valid for every layout
+                        master.add_cut(cut)
+                if fixed is None:
+                    break
+                fixed_cost = sum(unit_cost(table, c) for c, on in zip(cands, fixed, strict=True) if on)
+                if best_cost is not None and fixed_cost >= best_cost:
+                    break
+                if _elastic_ok(frame, strength, cands, fixed, elastic_needed):
+                    best, best_cost = fixed, fixed_cost
+                    master.below(fixed_cost)
+                    break
+                if plastic_only is None:
+                    plastic_only = fixed
         report(f"strength cuts (round {rounds}, {master.cuts} cuts)", best_cost, bound)
         if sets or cuts:
             continue
@@ -401,7 +472,7 @@ def solve_strength(
             if forces is not None and not forces.ok:
                 if plastic_only is None:
                     plastic_only = chosen
-                if status != "optimal":
+                if not solved:
                     break
                 if margin is None and time.monotonic() >= exact_until:
                     # The exact exclusions have not met an elastically adequate layout: ask the
@@ -423,7 +494,13 @@ def solve_strength(
         proven = status == "optimal" and exact
         if proven:
             bound = cost
-        break
+            break
+        if status != "gap" or (exact and bound >= cost):
+            proven = exact and bound >= cost
+            break
+        master.below(cost)  # within the master's gap: look for a cheaper one
+    if best_cost is not None:
+        bound = min(bound, best_cost)
     pick = best if best is not None else plastic_only
     if pick is None:
         msg = f"frame {frame.name!r}: no layout passed the checks within the time limit; raise the time limit"
@@ -431,6 +508,64 @@ def solve_strength(
     new = tuple(c.member for c, on in zip(cands, pick, strict=True) if on and not c.kept)
     added = sum(unit_cost(table, c) for c, on in zip(cands, pick, strict=True) if on)
     return StrengthFound(new, added, min(bound, added), proven and best is not None, rounds, master.cuts, excluded)
+
+
+def _elastic_ok(
+    frame: Frame, strength: StrengthCatalogue, cands: Sequence[Candidate], chosen: Sequence[bool], needed: bool
+) -> bool:
+    if not needed:
+        return True
+    forces = elastic_forces(frame, strength, [c.member for c, on in zip(cands, chosen, strict=True) if on])
+    return forces is None or forces.ok
+
+
+def _repair(
+    pf: PlasticFrame,
+    table: BayTable,
+    rows: Sequence[RuleRow],
+    start: Sequence[bool],
+    deadline: float,
+    found: list[CapacityCut],
+) -> list[bool] | None:
+    """A layout that carries every case, from ``start`` by greedy additions (an upper bound; None if stuck).
+
+    Each step takes the first violated Benders cut and adds the free candidates it values most per
+    unit cost until that cut is met, never one that would break an upper limit of the rules. More
+    members never lose capacity, so stability and the lower limits stay met. Every cut met on the
+    way is valid for all layouts and is appended to ``found`` for the master.
+    """
+    cands = pf.candidates
+    cur = list(start)
+    caps = [(set(r.bays), r.at_most) for r in rows if r.at_most is not None]
+    counts = [sum(1 for c, on in zip(cands, cur, strict=True) if on and (c.row, c.col) in bays) for bays, _ in caps]
+    while time.monotonic() < deadline:
+        cut = next((c for load in pf.loads if (c := farkas_cut(pf, load, cur)) is not None), None)
+        if cut is None:
+            return cur
+        found.append(cut)
+        taken = {(c.row, c.col, c.diagonal) for c, on in zip(cands, cur, strict=True) if on}
+        ranked = sorted(
+            ((coef / max(1, unit_cost(table, cands[k])), k, coef) for k, coef in cut.terms if not cur[k]), reverse=True
+        )
+        have = sum(coef for k, coef in cut.terms if cur[k])
+        added = False
+        for _, k, coef in ranked:
+            if have >= cut.need:
+                break
+            c = cands[k]
+            spot = (c.row, c.col, c.diagonal)
+            hits = [n for n, (bays, _) in enumerate(caps) if (c.row, c.col) in bays]
+            if spot in taken or any(counts[n] >= caps[n][1] for n in hits):
+                continue
+            cur[k] = True
+            taken.add(spot)
+            for n in hits:
+                counts[n] += 1
+            have += coef
+            added = True
+        if not added:
+            return None
+    return None
 
 
 def plastic_report(frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]) -> tuple[Utilisation, ...]:

@@ -116,6 +116,11 @@ class CapacityCut:
     need: int
     reason: str
 
+    @property
+    def key(self) -> tuple[tuple[tuple[int, int], ...], int]:
+        """Identity of the cut (its terms and need)."""
+        return (self.terms, self.need)
+
     def holds(self, chosen: Sequence[bool]) -> bool:
         """Whether a choice of candidates meets the cut."""
         return sum(c for k, c in self.terms if chosen[k]) >= self.need
@@ -332,44 +337,109 @@ def farkas_cut(pf: PlasticFrame, load: SenseLoad, chosen: Sequence[bool]) -> Cap
     rounding leaves it satisfied by the chosen layout, the monotone cover cut is used instead (more
     members never lose capacity: an absent member is one carrying zero).
     """
+    ray = farkas_ray(pf, load, chosen)
+    if ray is None:
+        return None
+    cut = cut_from(pf, load, *ray)
+    if cut is not None and not cut.holds(chosen):
+        return cut
+    return cover_cut(pf, chosen, f"case {load.title}")
+
+
+def farkas_ray(pf: PlasticFrame, load: SenseLoad, chosen: Sequence[bool]) -> tuple[FloatArray, FloatArray] | None:
+    """The phase-one multipliers (u, v) of a case the chosen layout does not carry (None if it does)."""
     imbalance, u, v = phase_one(pf, load, chosen)
     if imbalance <= CARRY_REL * max(load.total_kn, 1e-12):
         return None
+    return u, v
+
+
+def cut_from(pf: PlasticFrame, load: SenseLoad, u: FloatArray, v: FloatArray) -> CapacityCut | None:
+    """The cut ``D(x) >= beta`` of any multipliers (u, v <= 0), whole-numbered (None when it asks nothing).
+
+    Valid for every layout whatever the multipliers (see :func:`farkas_cut`); strong only for
+    multipliers near a ray of some layout.
+    """
+    v = np.minimum(v, 0.0)
     g = pf.equilibrium.T @ u
     beta = float(u @ load.nodal[pf.free_dofs])
-    if pf.uplift is not None and pf.uplift_kn is not None:
+    if pf.uplift is not None and pf.uplift_kn is not None and v.size:
         g = g + pf.uplift.T @ v
         beta += float(v @ (pf.uplift_kn - load.nodal[pf.base_y]))
     noise = 1e-9 * max(float(np.abs(g).max(initial=0.0)), 1e-300)
     g = np.where(np.abs(g) <= noise, 0.0, g)
     plus, minus = np.maximum(g, 0.0), np.maximum(-g, 0.0)
-    fixed = 0.0
-    finite = True
-    for k, cap in enumerate(pf.grid_tension):
-        if plus[k] or minus[k]:
-            if math.isinf(cap):
-                finite = False
-            fixed += (plus[k] + minus[k]) * cap
     n_grid = pf.grid_count
+    grid_g = plus[:n_grid] + minus[:n_grid]
+    if np.any((grid_g > 0) & np.isinf(pf.grid_tension)):
+        return None
+    fixed = float(grid_g[grid_g > 0] @ pf.grid_tension[grid_g > 0])
+    gp, gm = plus[n_grid:], minus[n_grid:]
+    with np.errstate(invalid="ignore"):
+        worth = np.where(gp > 0, gp * pf.tension, 0.0) + np.where(gm > 0, gm * pf.compression, 0.0)
     terms: list[tuple[int, float]] = []
     for k, cand in enumerate(pf.candidates):
-        gp, gm = plus[n_grid + k], minus[n_grid + k]
-        t, c = pf.tension[k], pf.compression[k]
-        worth = (gp * t if gp else 0.0) + (gm * c if gm else 0.0)
+        if worth[k] <= 0:
+            continue
         if cand.kept:
-            fixed += worth
-        elif worth > 0:
-            terms.append((k, worth))
+            fixed += float(worth[k])
+        else:
+            terms.append((k, float(worth[k])))
     rhs = beta - fixed
-    reason = f"case {load.title}"
-    if finite and rhs > 0 and math.isfinite(rhs):
-        scale = CUT_SCALE / rhs
-        need = math.floor(CUT_SCALE * (1.0 - 1e-9))
-        ints = tuple((k, min(math.ceil(w * scale) if math.isfinite(w) else need, need)) for k, w in terms)
-        cut = CapacityCut(tuple((k, c) for k, c in ints if c > 0), need, reason)
-        if not cut.holds(chosen):
-            return cut
-    return cover_cut(pf, chosen, reason)
+    if not (rhs > 0 and math.isfinite(rhs)):
+        return None
+    scale = CUT_SCALE / rhs
+    need = math.floor(CUT_SCALE * (1.0 - 1e-9))
+    ints = tuple((k, min(math.ceil(w * scale) if math.isfinite(w) else need, need)) for k, w in terms)
+    return CapacityCut(tuple((k, c) for k, c in ints if c > 0), need, f"case {load.title}")
+
+
+def ray_images(pf: PlasticFrame, u: FloatArray, v: FloatArray) -> list[tuple[FloatArray, FloatArray]]:
+    """The multipliers moved along the frame by whole bays, and mirrored: more valid cuts from one ray.
+
+    Any multipliers give a valid cut (:func:`cut_from`); images of a ray are strong where the frame
+    repeats itself (uniform bays), which is where one ray's cut alone would only move the bracing
+    to the next bay. Grid lines moved past an edge repeat the edge line's multipliers.
+    """
+    frame = pf.frame
+    rows, cols = frame.rows + 1, frame.cols + 1
+    full = np.zeros(2 * rows * cols)
+    full[pf.free_dofs] = u
+    grid = full.reshape(rows, cols, 2)
+    base = np.zeros(cols)
+    if v.size:
+        base[pf.base_q] = v
+    out = []
+    for mirror in (False, True):
+        g0 = grid[:, ::-1, :] * np.array([-1.0, 1.0]) if mirror else grid
+        b0 = base[::-1] if mirror else base
+        for m in range(-(cols - 1), cols):
+            if m == 0 and not mirror:
+                continue
+            # lines moved past an edge repeat the edge line's motion (a rigid sway stays a rigid sway)
+            take = np.clip(np.arange(cols) - m, 0, cols - 1)
+            moved = g0[:, take, :]
+            out.append((moved.reshape(-1)[pf.free_dofs], b0[take][pf.base_q] if v.size else v))
+    return out
+
+
+def rounded_cut(cut: CapacityCut) -> CapacityCut | None:
+    """The rounded form of a cut: at least ``ceil(need / largest coefficient)`` of its candidates.
+
+    Valid because no candidate gives more than the largest coefficient; None when it asks for one
+    member only (the cut itself already does).
+
+    Example:
+        >>> rounded_cut(CapacityCut(((0, 4), (1, 4), (2, 3)), 10, "c")).need
+        3
+    """
+    largest = max((c for _, c in cut.terms), default=0)
+    if largest <= 0:
+        return None
+    fewest = -(-cut.need // largest)
+    if fewest <= 1:
+        return None
+    return CapacityCut(tuple((k, 1) for k, _ in cut.terms), fewest, cut.reason + " (rounded)")
 
 
 def cover_cut(pf: PlasticFrame, chosen: Sequence[bool], reason: str) -> CapacityCut:
