@@ -537,7 +537,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_common(cmp_)
     _add_solver_options(
         cmp_, per="strategy's solve of each frame",
-        whole="the whole run may take up to 5 x S x the number of frames, plus the drawing (seconds)",
+        whole="the whole run may take up to 6 x S x the number of frames, plus the drawing (seconds)",
     )  # fmt: skip
     cmp_.add_argument("--out", metavar="DIR", help="folder for the files (default: <project>-compare)")
     cmp_.add_argument("--bare", action="store_true", help="ignore every member in the file: price from the bare frame")

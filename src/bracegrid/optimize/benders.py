@@ -30,10 +30,19 @@ from typing import Any
 import numpy as np
 
 from bracegrid.analysis.digraph import leaving_bays
-from bracegrid.errors import InfeasibleError, InputError
+from bracegrid.errors import InfeasibleError, SolverLimitError
 from bracegrid.mechanics import FrameForces, analyse_frame, missing_stiffness
 from bracegrid.mechanics.motions import z_of_row
-from bracegrid.model import Diagonal, Frame, Member, MemberKind, MemberStrength, StrengthCatalogue, Supports
+from bracegrid.model import (
+    RULE_FIELDS,
+    Diagonal,
+    Frame,
+    Member,
+    MemberKind,
+    MemberStrength,
+    StrengthCatalogue,
+    Supports,
+)
 from bracegrid.optimize.bays import Additions, BayTable
 from bracegrid.optimize.capacity import (
     CARRY_REL,
@@ -353,7 +362,7 @@ def solve_strength(
 
     Raises:
         InfeasibleError: With reasons in words, when the rules or the loads rule every layout out.
-        InputError: When the time limit came before any layout passed the plastic checks.
+        SolverLimitError: When the time limit came before any layout passed the plastic checks.
     """
     cands = candidates_of(frame, table, allow)
     rows = rule_rows(frame)
@@ -397,10 +406,11 @@ def solve_strength(
         rounds += 1
         if status == "infeasible":
             if best is None and plastic_only is None:
-                words = [r.reason for r in rows][:3]
-                what = "; ".join(words) if words else "the load cases"
-                msg = (f"frame {frame.name!r}: no layout meets stability, the load cases and the spreading rules "
-                       f"together (for example {what}); relax a rule or clear more bays")  # fmt: skip
+                given = [f"{k} = {v}" for k, v in zip(RULE_FIELDS, frame.rules.values(), strict=True) if v is not None]
+                what = ", ".join(given) if given else "no spreading rules"
+                loads = "the load cases" if pf is not None else "stability"
+                msg = (f"frame {frame.name!r}: no layout meets {loads} and the spreading rules together ({what}); "
+                       "relax a rule or clear more bays")  # fmt: skip
                 raise InfeasibleError([msg])
             proven = best is not None and exact
             if best_cost is not None and exact:
@@ -504,7 +514,7 @@ def solve_strength(
     pick = best if best is not None else plastic_only
     if pick is None:
         msg = f"frame {frame.name!r}: no layout passed the checks within the time limit; raise the time limit"
-        raise InputError(msg)
+        raise SolverLimitError(msg)
     new = tuple(c.member for c, on in zip(cands, pick, strict=True) if on and not c.kept)
     added = sum(unit_cost(table, c) for c, on in zip(cands, pick, strict=True) if on)
     return StrengthFound(new, added, min(bound, added), proven and best is not None, rounds, master.cuts, excluded)
@@ -539,7 +549,7 @@ def _repair(
     caps = [(set(r.bays), r.at_most) for r in rows if r.at_most is not None]
     counts = [sum(1 for c, on in zip(cands, cur, strict=True) if on and (c.row, c.col) in bays) for bays, _ in caps]
     while time.monotonic() < deadline:
-        cut = next((c for load in pf.loads if (c := farkas_cut(pf, load, cur)) is not None), None)
+        cut = next((got for load in pf.loads if (got := farkas_cut(pf, load, cur)) is not None), None)
         if cut is None:
             return cur
         found.append(cut)

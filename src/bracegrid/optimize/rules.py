@@ -115,4 +115,11 @@ def rule_reasons(frame: Frame, table: BayTable, rows: list[RuleRow]) -> list[str
                 )
         if row.at_most is not None and kept > row.at_most:
             out.append(f"{row.reason}, but {kept} members are kept there already; raise the limit")
+    rules = frame.rules
+    e, cap = rules.end_bay_within, rules.max_members_per_column
+    if e is not None and cap is not None and e * cap < frame.rows:
+        out.append(
+            f"end_bay_within = {e} needs a member in the first {e} bay(s) of each of the {frame.rows} lifts, "
+            f"but max_members_per_column = {cap} allows at most {e * cap} there; raise one of them"
+        )
     return out
