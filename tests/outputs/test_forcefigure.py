@@ -14,7 +14,7 @@ import pytest
 
 from bracegrid.mechanics import BarKind, analyse_frame
 from bracegrid.outputs.forcefigure import force_legend_html, force_svg
-from bracegrid.outputs.forcesheet import OVER_RGB
+from bracegrid.outputs.ramp import OVER_RGB
 from tests.drawing_cases import braced_quayside
 
 SVG = "{http://www.w3.org/2000/svg}"

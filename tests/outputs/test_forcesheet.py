@@ -30,8 +30,9 @@ from bracegrid.model import (
 )
 from bracegrid.outputs import OutputFormat, render_force_files
 from bracegrid.outputs.drawing import dxf_bytes
-from bracegrid.outputs.forcesheet import OVER_BLOCK, ForceLayer, build_force_sheet, nice_factor, utilisation_rgb
+from bracegrid.outputs.forcesheet import OVER_BLOCK, ForceLayer, build_force_sheet, nice_factor
 from bracegrid.outputs.preview import PreviewFormat, preview_pixels, render_preview
+from bracegrid.outputs.ramp import utilisation_rgb
 
 T = MemberKind.TIE
 STRENGTH = StrengthCatalogue(

@@ -47,9 +47,9 @@ def _block_width(b: FrameBox, scale: float) -> float:
 
 
 def _fits(boxes: list[FrameBox], band: tuple[float, float], paper: tuple[float, float], scale: float) -> bool:
-    """The docstring's rule: frames side by side (GAP apart) above the band, all inside the margins."""
+    """The docstring's rule: frames side by side (GAP apart) on one ground line above the band, inside the margins."""
     width = sum(b.margins.left + _block_width(b, scale) for b in boxes) + GAP * (len(boxes) - 1)
-    height = max(b.margins.top + b.height_mm / scale + b.margins.bottom for b in boxes)
+    height = max(b.margins.top + b.height_mm / scale for b in boxes) + max(b.margins.bottom for b in boxes)
     room_w, room_h = paper[0] - 2 * MARGIN, paper[1] - 2 * MARGIN
     return width <= room_w and band[0] <= room_w and height + GAP + band[1] <= room_h
 
@@ -139,12 +139,6 @@ def test_nothing_fits_at_1_2000_so_the_scale_grows() -> None:
     _check_geometry(plan, boxes, (10, 10))
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="when no usual scale prints the smallest bay 10 mm wide (a bay under 200 mm: 1:20 is the most "
-    "detailed), plan_sheet falls back to A0 at 1:2000, the largest sheet and the least detailed scale, "
-    "even for a frame that fits on A3 at 1:20",
-)
 def test_small_bays_still_get_the_smallest_sheet() -> None:
     # A 1 m x 1 m frame with a 150 mm bay: 150 / 20 = 7.5 mm < 10 at every usual scale. The frame itself
     # (50 x 50 mm at 1:20) fits A3 easily; the docstring's "smallest sheet and most detailed scale on which
@@ -153,12 +147,6 @@ def test_small_bays_still_get_the_smallest_sheet() -> None:
     assert (plan.sheet, plan.scale) == ("A3", 20)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="the frames' height is taken as max(top + height + bottom) over the frames, but they share one "
-    "ground line, so it is max(top + height) + max(bottom): a short frame with a deep bottom margin "
-    "beside a tall frame hangs into the band (pinned bases have deeper bottom margins than free frames)",
-)
 def test_frames_with_different_bottom_margins_stay_above_the_band() -> None:
     # Hand, A3 room height 277: the tall frame sets the ground line 16000 / s above it, the short one needs
     # 40 mm below it: 16000 / s + 40 + 8 + 30 <= 277 gives s >= 80.4, so 1:100. At 1:75 (what the extent
@@ -173,15 +161,12 @@ def test_frames_with_different_bottom_margins_stay_above_the_band() -> None:
 @pytest.mark.parametrize("seed", range(40))
 def test_random_plans_are_the_first_fit(seed: int) -> None:
     rng = random.Random(seed)
-    # One bottom margin for every frame of a plan: frames with different ones can hang into the band
-    # (test_frames_with_different_bottom_margins_stay_above_the_band).
-    bottom = rng.uniform(0, 40)
     boxes = [
         FrameBox(
             rng.choice([2000, 8000, 30000, 60000]),
             rng.choice([2000, 6000, 16000, 30000]),
             rng.choice([500, 1000, 2500]),
-            Margins(rng.uniform(0, 40), rng.uniform(0, 20), bottom, rng.uniform(0, 25), rng.uniform(0, 80)),
+            Margins(rng.uniform(0, 40), rng.uniform(0, 20), rng.uniform(0, 40), rng.uniform(0, 25), rng.uniform(0, 80)),
         )
         for _ in range(rng.randint(1, 3))
     ]
@@ -189,11 +174,12 @@ def test_random_plans_are_the_first_fit(seed: int) -> None:
     plan = plan_sheet(boxes, band)
     _check_geometry(plan, boxes, band)
     smallest_bay = min(b.min_bay_mm for b in boxes)
+    readable = any(smallest_bay / scale >= MIN_BAY for scale in SCALES)
     candidates = [
         (name, scale)
         for name, w, h in SHEETS
         for scale in SCALES
-        if smallest_bay / scale >= MIN_BAY and _fits(boxes, band, (w, h), scale)
+        if (smallest_bay / scale >= MIN_BAY or not readable) and _fits(boxes, band, (w, h), scale)
     ]
     if candidates:
         assert (plan.sheet, plan.scale) == candidates[0]  # smallest sheet, then most detailed scale

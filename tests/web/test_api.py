@@ -19,10 +19,12 @@ import pytest
 from starlette.testclient import TestClient
 
 from bracegrid.io import load_project
+from bracegrid.mechanics import analyse_frame
 from bracegrid.model import Diagonal, Member, MemberKind
+from bracegrid.outputs.ramp import OVER_RGB, UNRATED_RGB, hex_colour, utilisation_rgb
 from tests.common import project_head
 from tests.physics import physically_rigid
-from tests.web.helpers import PAGE, TOKEN, copy_project, editor, frame_edit, load
+from tests.web.helpers import ORIGIN, PAGE, TOKEN, copy_project, editor, frame_edit, load
 
 
 @pytest.fixture
@@ -423,3 +425,66 @@ def test_unknown_job_is_404_not_a_crash(shed: Path) -> None:
             assert got.status_code == 404
             assert got.json()["error"] == "not-found"
         assert client.post("/api/jobs/0123456789abcdef/cancel", json={}, headers=PAGE).status_code == 404
+
+
+# --------------------------------------------------------------------------- forces (utilisation colouring)
+
+
+def test_forces_endpoint_gives_the_librarys_envelope_and_the_sheets_colours(shed: Path) -> None:
+    """The page colours exactly what ``bracegrid forces`` computes: same bars, forces, cases and ramp colours."""
+    project = load_project(shed)
+    with editor(shed) as (client, _):
+        data = load(client)
+        for f in data["frames"]:
+            got = client.post("/api/forces", headers=PAGE, json={"frame": frame_edit(f)})
+            assert got.status_code == 200, got.text
+            body = got.json()
+            frame = project.frame(f["name"])
+            assert f["load_cases"] == [c.name for c in frame.loads]
+            if not frame.loads:
+                assert body["available"] is False
+                assert "no load cases" in body["reason"]
+                continue
+            want = analyse_frame(frame, project.strength)
+            assert body["available"] is bool(want.envelope)
+            assert body["ok"] is want.ok
+            assert [c["title"] for c in body["cases"]] == [c.title for c in want.cases]
+            assert len(body["bars"]) == len(want.envelope)
+            for bar, entry in zip(body["bars"], want.envelope, strict=True):
+                m = entry.member
+                assert bar["label"] == m.label
+                assert bar["force_kn"] == pytest.approx(m.force_kn, abs=1e-6)
+                assert bar["case"] == entry.case
+                if m.utilisation is None:
+                    assert bar["colour"] == hex_colour(UNRATED_RGB)
+                elif m.over:
+                    assert bar["colour"] == hex_colour(OVER_RGB)
+                else:
+                    assert bar["colour"] == hex_colour(utilisation_rgb(m.utilisation))
+            assert "licensed engineer" in body["caution"]
+            assert "first-order" in body["model_limits"].lower()
+
+
+def test_forces_of_a_mechanism_colour_nothing_and_say_why(shed: Path) -> None:
+    with editor(shed) as (client, _):
+        roof = load(client)["frames"][0]
+        got = client.post("/api/forces", headers=PAGE, json={"frame": frame_edit(roof, members=[])})
+    assert got.status_code == 200, got.text
+    body = got.json()
+    assert body["available"] is False
+    assert "mechanism" in body["reason"]
+
+
+def test_forces_of_an_invalid_edit_is_the_loaders_message(shed: Path) -> None:
+    with editor(shed) as (client, _):
+        roof = load(client)["frames"][0]
+        got = client.post("/api/forces", headers=PAGE, json={"frame": frame_edit(roof, widths=["-3"])})
+    assert got.status_code == 422
+    assert got.json()["problems"]
+
+
+def test_forces_needs_the_token(shed: Path) -> None:
+    with editor(shed) as (client, _):
+        roof = load(client)["frames"][0]
+        got = client.post("/api/forces", headers={"Origin": ORIGIN}, json={"frame": frame_edit(roof)})
+    assert got.status_code == 403

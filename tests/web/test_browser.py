@@ -25,6 +25,7 @@ from typing import Any
 import pytest
 
 from bracegrid.io import load_project
+from bracegrid.mechanics import analyse_frame
 from bracegrid.model import MemberKind
 from tests.physics import physically_rigid
 from tests.web.helpers import ROOT, copy_project
@@ -308,3 +309,26 @@ def test_compare_links_and_cancel(page: Any, served: tuple[str, Path]) -> None:
     page.click("#cancel")
     page.wait_for_function("() => document.getElementById('job-message').textContent.includes('cancelled')")
     assert page.locator("#proposal-card").is_hidden()
+
+
+@pytest.mark.parametrize("served", ["orchard-shed.toml"], indirect=True)
+def test_members_coloured_by_utilisation_after_the_verdict(page: Any, served: tuple[str, Path]) -> None:
+    """Orchard shed (invented loads): the stable roof plan's members take the force sheets' colours."""
+    url, project = served
+    assert _open(page, url) == "stable"
+    page.wait_for_function("() => { const f = window.bracegrid.frames[0]; return f.forces && f.forces.available; }")
+    want = analyse_frame(load_project(project).frames[0], load_project(project).strength)
+    rated = page.locator("#layer-members line.rated")
+    assert rated.count() == len(load_project(project).frames[0].members)
+    assert page.locator("#layer-util line.grid-util").count() > 0  # standards and ledgers with a capacity
+    state = page.inner_text("#forces-state")
+    assert f"{100 * (want.max_utilisation or 0.0):.0f} %" in state
+    assert page.locator("#forces-cases li").count() == len(want.cases)
+    colours = page.eval_on_selector_all("#layer-members line.rated", "ls => ls.map(l => l.style.stroke)")
+    assert all(c.startswith("rgb(") for c in colours)
+    SHOTS.mkdir(parents=True, exist_ok=True)
+    page.screenshot(path=str(SHOTS / "editor-orchard-utilisation.png"))
+    # colouring off: members back in their kind colours; a click on a member re-analyses
+    page.uncheck("#colour-util")
+    assert page.locator("#layer-members line.rated").count() == 0
+    assert page.locator("#layer-util line").count() == 0

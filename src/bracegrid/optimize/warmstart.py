@@ -12,7 +12,7 @@ import time
 
 import numpy as np
 
-from bracegrid.analysis.digraph import IntArray, leaving_bays, split_labels
+from bracegrid.analysis.digraph import BoolArray, IntArray, leaving_bays, split_labels
 from bracegrid.optimize.bays import Additions, AdditionsBuilder, BayCounts, BayTable
 from bracegrid.optimize.patterns import PatternKind, pattern
 from bracegrid.optimize.separation import cut_short, is_strong, meets, strong_labels, violated_cuts
@@ -217,6 +217,30 @@ def constructive(table: BayTable, start: BayCounts | None = None) -> Additions |
     return None if fixed is None else prune(table, fixed)
 
 
+def _brace_for_tie(table: BayTable, cur: AdditionsBuilder, up_mask: BoolArray, down_mask: BoolArray) -> bool:
+    """Where no free slot gives a cut an arc, swap the cheapest tie across it for a brace.
+
+    A bay whose slots are full of ties (or a tie and a brace) gives the cut no new arc, yet a brace
+    in place of its tie pointing the other way does: the bay keeps its arc into the set and gains
+    one out of it. Each swap adds one arc, so the greedy still ends. Returns False if no bay can.
+    """
+    extra = table.brace_cost - table.tie_cost
+    # up arcs leave the set through bays in up_mask: a falling tie there becomes a brace, and vice versa
+    up = np.where(up_mask & table.brace_ok & (cur.falling > 0), extra, _BIG)
+    down = np.where(down_mask & table.brace_ok & (cur.rising > 0), extra, _BIG)
+    iu, idn = int(up.argmin()), int(down.argmin())
+    if min(up.flat[iu], down.flat[idn]) >= _BIG:
+        return False
+    if up.flat[iu] <= down.flat[idn]:
+        i, j = divmod(iu, table.cols)
+        cur.falling[i, j] -= 1
+    else:
+        i, j = divmod(idn, table.cols)
+        cur.rising[i, j] -= 1
+    cur.braces[i, j] += 1
+    return True
+
+
 def constructive_redundant(
     table: BayTable, start: BayCounts | None, k: int, *, deadline: float | None = None
 ) -> Additions | None:
@@ -248,7 +272,9 @@ def constructive_redundant(
             cd = np.where(down_mask, down, _BIG)
             iu, idn = int(cu.argmin()), int(cd.argmin())
             if min(cu.flat[iu], cd.flat[idn]) >= _BIG:
-                return None
+                if not _brace_for_tie(table, cur, up_mask, down_mask):
+                    return None
+                continue
             is_up = cu.flat[iu] <= cd.flat[idn]
             i, j = divmod(iu if is_up else idn, table.cols)
             if (up_kind if is_up else down_kind)[i, j] == 1:

@@ -2,7 +2,7 @@
 
 Made for the page like :mod:`bracegrid.outputs.figure` (bays at a readable size,
 real SVG text), not a force sheet shrunk from A3: every bar coloured by its
-utilisation on the force sheet's own colour ramp (:func:`~bracegrid.outputs.forcesheet.utilisation_rgb`),
+utilisation on the force sheet's own colour ramp (:func:`~bracegrid.outputs.ramp.utilisation_rgb`),
 over-capacity bars heavy, slack ties grey and dashed, force labels in kN
 (tension +) where the bays leave room, and the base reactions under the nodes.
 A case that finds a mechanism shades the rows and columns that move.
@@ -16,17 +16,14 @@ import math
 from bracegrid.mechanics import BarKind, CaseForces
 from bracegrid.model import Frame, Supports
 from bracegrid.outputs.figure import bay_scale, fmt_px
-from bracegrid.outputs.forcesheet import OVER_RGB, RAMP, UNRATED_RGB, bar_ends, utilisation_rgb
+from bracegrid.outputs.forcesheet import bar_ends
+from bracegrid.outputs.ramp import OVER_RGB, RAMP, UNRATED_RGB, hex_colour, utilisation_rgb
 
 _FONT = 'font-family="system-ui,-apple-system,Segoe UI,Helvetica,Arial,sans-serif"'
 #: Labels are written where a bay is at least this many pixels wide and high (else they would overlap).
 _LABEL_BAY_PX = 48.0
 #: Above this many bars, only diagonals and over-capacity bars are labelled (a figure stays readable and small).
 _LABEL_ALL_BARS = 400
-
-
-def _hex(rgb: tuple[int, int, int]) -> str:
-    return "#{:02x}{:02x}{:02x}".format(*rgb)
 
 
 def _kn(value: float) -> str:
@@ -95,7 +92,8 @@ def force_svg(frame: Frame, case: CaseForces, *, title: str) -> str:
             rgb = utilisation_rgb(abs(m.force_kn) / largest) if largest > 0 else UNRATED_RGB
         heavy = m.over
         out.append(
-            f'<path d="M{n(ax)},{n(ay)}L{n(bx)},{n(by)}" stroke="{_hex(rgb)}" stroke-width="{4 if heavy else 2.2}"/>'
+            f'<path d="M{n(ax)},{n(ay)}L{n(bx)},{n(by)}" stroke="{hex_colour(rgb)}" '
+            f'stroke-width="{4 if heavy else 2.2}"/>'
         )
         diagonal = m.kind in {BarKind.BRACE, BarKind.TIE}
         if label_room and (few or diagonal or heavy):
@@ -106,7 +104,7 @@ def force_svg(frame: Frame, case: CaseForces, *, title: str) -> str:
             if angle > 90 or angle < -90:
                 angle += 180
             turn = f"rotate({angle:.0f} {n(cx)} {n(cy)})"
-            colour = _hex(OVER_RGB) if heavy else "#1d2327"
+            colour = hex_colour(OVER_RGB) if heavy else "#1d2327"
             labels.append(
                 f'<text x="{n(cx)}" y="{n(cy - 3)}" text-anchor="middle" transform="{turn}" fill="{colour}">'
                 f"{_kn(m.force_kn)}</text>"
@@ -120,7 +118,7 @@ def force_svg(frame: Frame, case: CaseForces, *, title: str) -> str:
             for reaction in case.reactions:
                 if reaction.support == "base" and abs(reaction.fy_kn) > 1e-6:
                     x, _ = px(xs[reaction.q], 0)
-                    colour = _hex(OVER_RGB) if reaction.uplift_over else "#1849a9"
+                    colour = hex_colour(OVER_RGB) if reaction.uplift_over else "#1849a9"
                     out.append(
                         f'<text x="{n(x)}" y="{n(base + 16)}" text-anchor="middle" fill="{colour}">'
                         f"{_kn(reaction.fy_kn)}</text>"
@@ -136,7 +134,7 @@ def force_defs() -> str:
         >>> 'id="bg-ramp"' in force_defs()
         True
     """
-    stops = "".join(f'<stop offset="{v:g}" stop-color="{_hex(rgb)}"/>' for v, rgb in RAMP)
+    stops = "".join(f'<stop offset="{v:g}" stop-color="{hex_colour(rgb)}"/>' for v, rgb in RAMP)
     return (
         '<svg width="0" height="0" style="position:absolute" aria-hidden="true"><defs>'
         f'<linearGradient id="bg-ramp">{stops}</linearGradient></defs></svg>'
@@ -158,8 +156,8 @@ def force_legend_html(*, rated: bool) -> str:
 
     rows = [
         (ramp, f"bar colour: {scale_words}"),
-        (sample(f'<path d="M4,11H42" stroke="{_hex(OVER_RGB)}" stroke-width="4"/>'), "over capacity (heavy)"),
-        (sample(f'<path d="M4,11H42" stroke="{_hex(UNRATED_RGB)}" stroke-width="2.2"/>'), "no capacity given"),
+        (sample(f'<path d="M4,11H42" stroke="{hex_colour(OVER_RGB)}" stroke-width="4"/>'), "over capacity (heavy)"),
+        (sample(f'<path d="M4,11H42" stroke="{hex_colour(UNRATED_RGB)}" stroke-width="2.2"/>'), "no capacity given"),
         (sample('<path d="M4,11H42" stroke="#9aa0a6" stroke-dasharray="5 3"/>'), "slack tie: no force"),
         (
             sample('<text x="23" y="15" text-anchor="middle" font-size="10">+12.3</text>'),

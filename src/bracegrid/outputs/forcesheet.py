@@ -12,7 +12,6 @@ layer here is our own (docs/forces.md lists them).
 
 from __future__ import annotations
 
-import itertools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -26,6 +25,7 @@ from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, 
 from bracegrid.model import Diagonal, Frame, Project, Supports
 from bracegrid.outputs.forcetext import drift_text, util_text
 from bracegrid.outputs.layers import Field, Layer, LayerSpec
+from bracegrid.outputs.ramp import OVER_RGB, UNRATED_RGB, utilisation_rgb
 from bracegrid.outputs.sheet import (
     GAP,
     H_LABEL,
@@ -87,35 +87,6 @@ class ForceLayer(Enum):
 
 
 # --------------------------------------------------------------------------- colours
-
-#: The utilisation colour ramp (ours): utilisation -> RGB, interpolated between the stops.
-RAMP: tuple[tuple[float, tuple[int, int, int]], ...] = (
-    (0.0, (70, 110, 200)),
-    (0.5, (40, 160, 90)),
-    (0.8, (235, 170, 30)),
-    (1.0, (220, 60, 30)),
-)
-#: Beyond capacity.
-OVER_RGB = (150, 0, 110)
-#: No capacity given for this bar.
-UNRATED_RGB = (70, 70, 70)
-
-
-def utilisation_rgb(value: float) -> tuple[int, int, int]:
-    """Colour of a utilisation (0..1 along the ramp; above 1 the over-capacity colour).
-
-    Example:
-        >>> utilisation_rgb(0.0), utilisation_rgb(0.25), utilisation_rgb(1.5)
-        ((70, 110, 200), (55, 135, 145), (150, 0, 110))
-    """
-    if value > 1.0 + 1e-9:
-        return OVER_RGB
-    v = min(max(value, 0.0), 1.0)
-    for (a, ca), (b, cb) in itertools.pairwise(RAMP):
-        if v <= b:
-            t = (v - a) / (b - a)
-            return tuple(round(x + t * (y - x)) for x, y in zip(ca, cb, strict=True))  # type: ignore[return-value]
-    return RAMP[-1][1]
 
 
 def nice_factor(target: float) -> float:

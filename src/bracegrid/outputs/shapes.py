@@ -35,6 +35,7 @@ from bracegrid.model import (
     layout_length_mm,
 )
 from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution, StrengthCheck
+from bracegrid.outputs.ramp import OVER_RGB, RAMP, UNRATED_RGB, hex_colour, utilisation_rgb
 from bracegrid.units import length_in_unit, metres
 
 
@@ -369,6 +370,7 @@ def editor_frame_dict(frame: Frame, unit: str) -> dict[str, Any]:
         "blocked_by_openings": [list(b) for b in sorted(blocked_bays(frame) - listed)],
         "openings": [{"name": o.name, "polygon_mm": [list(p) for p in o.polygon]} for o in frame.openings],
         "members": [optimize_member_dict(m) for m in frame.members],
+        "load_cases": [c.name for c in frame.loads],
     }
 
 
@@ -551,6 +553,54 @@ def frame_forces_dict(ff: FrameForces) -> dict[str, Any]:
             for e in ff.envelope
         ],
         **force_summary_dict(ff),
+    }
+
+
+def _bar_colour(m: MemberForce) -> str:
+    """The force sheets' colour of a bar: the utilisation ramp, the over-capacity colour, or unrated grey."""
+    if m.utilisation is None:
+        return hex_colour(UNRATED_RGB)
+    return hex_colour(OVER_RGB if m.over else utilisation_rgb(m.utilisation))
+
+
+def editor_forces_dict(ff: FrameForces | None, *, reason: str = "") -> dict[str, Any]:
+    """The editor's utilisation view of one edited frame: each bar's envelope, cases in brief.
+
+    ``available`` is false (with ``reason`` in words) where the frame has no load cases, lacks a
+    stiffness, or is a mechanism under every case; the page then colours nothing.
+
+    Example:
+        >>> editor_forces_dict(None, reason="no load cases")["available"]
+        False
+    """
+    if ff is None:
+        return {"available": False, "reason": reason, "model_limits": MODEL_LIMITS, "caution": CAUTION}
+    governing = ff.governing
+    ramp = [[at, hex_colour(rgb)] for at, rgb in RAMP]
+    return {
+        "available": bool(ff.envelope),
+        "reason": reason if ff.envelope else "every load case finds a mechanism: nothing to colour",
+        "ok": ff.ok,
+        "max_utilisation": _r(ff.max_utilisation),
+        "governing": None if governing is None else {"label": governing.member.label, "case": governing.case},
+        "bars": [
+            {
+                **member_force_dict(e.member),
+                "label": e.member.label,
+                "case": e.case,
+                "over": e.member.over,
+                "colour": _bar_colour(e.member),
+            }
+            for e in ff.envelope
+        ],
+        "ramp": ramp,
+        "over_colour": hex_colour(OVER_RGB),
+        "cases": [
+            {"title": c.title, "ok": c.ok, "mechanism": c.is_mechanism, "max_utilisation": _r(c.max_utilisation)}
+            for c in ff.cases
+        ],
+        "model_limits": MODEL_LIMITS,
+        "caution": CAUTION,
     }
 
 

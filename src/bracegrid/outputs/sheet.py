@@ -112,7 +112,9 @@ def _block_width(b: FrameBox, scale: float) -> float:
 
 def _frames_extent(boxes: Sequence[FrameBox], scale: float) -> tuple[float, float]:
     width = sum(b.margins.left + _block_width(b, scale) for b in boxes) + GAP * (len(boxes) - 1)
-    height = max(b.margins.top + b.height_mm / scale + b.margins.bottom for b in boxes)
+    # One common ground line: the tallest frame above it and the deepest bottom margin below it,
+    # which need not belong to the same frame.
+    height = max(b.margins.top + b.height_mm / scale for b in boxes) + max(b.margins.bottom for b in boxes)
     return width, height
 
 
@@ -127,7 +129,9 @@ def plan_sheet(boxes: Sequence[FrameBox], band: tuple[float, float]) -> SheetPla
         band: Width and height of the bottom band, paper mm.
 
     Returns:
-        The plan. If nothing fits even on A0 at 1:2000 the scale grows until it does.
+        The plan. Where no usual scale prints the smallest bay ``MIN_BAY`` wide (bays under
+        200 mm), the smallest sheet and most detailed scale on which everything fits. If nothing
+        fits even on A0 at 1:2000 the scale grows until it does.
 
     Example:
         >>> box = FrameBox(12000, 8000, 2000, Margins(30, 5, 30, 15))
@@ -142,14 +146,16 @@ def plan_sheet(boxes: Sequence[FrameBox], band: tuple[float, float]) -> SheetPla
         return width <= room_w and band[0] <= room_w and height + GAP + band[1] <= room_h
 
     smallest_bay = min(b.min_bay_mm for b in boxes)
-    choice: tuple[str, tuple[float, float], int] | None = None
-    for name, w, h in SHEETS:
-        for scale in SCALES:
-            if smallest_bay / scale >= MIN_BAY and fits((w, h), scale):
-                choice = (name, (w, h), scale)
-                break
-        if choice:
-            break
+    readable = any(smallest_bay / scale >= MIN_BAY for scale in SCALES)
+    choice: tuple[str, tuple[float, float], int] | None = next(
+        (
+            (name, (w, h), scale)
+            for name, w, h in SHEETS
+            for scale in SCALES
+            if (smallest_bay / scale >= MIN_BAY or not readable) and fits((w, h), scale)
+        ),
+        None,
+    )
     if choice is None:
         name, w, h = SHEETS[-1]
         scale = SCALES[-1]

@@ -25,9 +25,16 @@ from starlette.responses import JSONResponse, Response, StreamingResponse
 from starlette.routing import Route
 
 from bracegrid.analysis import check_frame
-from bracegrid.errors import BraceGridError, ExportError, InputError
+from bracegrid.errors import BraceGridError, ExportError, InputError, NumericalError
 from bracegrid.io import parse_member_refs
-from bracegrid.outputs.shapes import editor_project_dict, error_dict, live_check_dict, problems_dict
+from bracegrid.mechanics import analyse_frame
+from bracegrid.outputs.shapes import (
+    editor_forces_dict,
+    editor_project_dict,
+    error_dict,
+    live_check_dict,
+    problems_dict,
+)
 from bracegrid.web.guard import BodyTooLargeError, GuardMiddleware, GuardRules
 from bracegrid.web.jobs import Job, JobBoard, JobKind, JobSpec, compare_files
 from bracegrid.web.requests import RequestError, check_request, job_request, parse_json, save_request
@@ -147,6 +154,29 @@ async def check(request: Request) -> Response:
     payload = await asyncio.to_thread(work)
     payload["server_ms"] = round((time.perf_counter() - start) * 1000.0, 2)
     return _json(payload)
+
+
+async def forces(request: Request) -> Response:
+    """``POST /api/forces``: member forces and utilisation of one edited frame under its load cases.
+
+    Asked for after the verdict (it costs more than the check), so the verdict never waits on it.
+    A frame without load cases, or whose stiffness the file does not give, answers ``available:
+    false`` with the reason in words; a solve that fails its residual check reports no numbers.
+    """
+    req = check_request(await _body(request))
+    session = _session(request)
+
+    def work() -> dict[str, Any]:
+        frame = session.frame(req.frame)
+        if not frame.loads:
+            return editor_forces_dict(None, reason="this frame has no load cases ([[frame.load]] in the project file)")
+        try:
+            result = analyse_frame(frame, session.project.strength)
+        except (InputError, NumericalError) as exc:
+            return editor_forces_dict(None, reason=str(exc))
+        return editor_forces_dict(result)
+
+    return _json(await asyncio.to_thread(work))
 
 
 async def save(request: Request) -> Response:
@@ -335,6 +365,7 @@ def create_app(session: EditorSession, rules: GuardRules, *, board: JobBoard | N
         route("/static/{name}", asset, "GET"),
         route("/api/project", project, "GET"),
         route("/api/check", check, "POST"),
+        route("/api/forces", forces, "POST"),
         route("/api/save", save, "POST"),
         route("/api/save-copy", save_copy, "POST"),
         route("/api/optimize", optimize, "POST"),

@@ -57,6 +57,8 @@
       verdict: null,
       problems: [],
       size: null,
+      loadCases: f.load_cases || [],
+      forces: null,
     };
   }
 
@@ -149,6 +151,7 @@
     const started = state.editTime;
     const got = await api("POST", "/api/check", { frame: editOf(f) });
     state.inflight = false;
+    f.forces = null;
     if (got.ok) {
       f.verdict = got.data;
       f.problems = [];
@@ -174,8 +177,19 @@
       state.lastMs = ms;
       const server = got.ok ? ` (server ${got.data.server_ms.toFixed(1)} ms)` : "";
       $("timing").textContent = `checked in ${ms.toFixed(0)} ms${server}`;
+      renderForces();
     }
     if (state.pending) runCheck();
+    else if (got.ok && f.loadCases.length) runForces(f, seq);
+  }
+
+  // Member forces come after the verdict (they cost more than the check) and only for the
+  // latest edit: an answer for an older edit is dropped.
+  async function runForces(f, seq) {
+    const got = await api("POST", "/api/forces", { frame: editOf(f) });
+    if (seq !== state.checkSeq) return;
+    f.forces = got.ok ? got.data : { available: false, reason: got.data.message || "forces not available" };
+    if (f === frame()) { renderMembers(); renderForces(); }
   }
 
   // ---------------------------------------------------------------- edits and history
@@ -339,6 +353,7 @@
     renderGrid();
     renderVerdict(state.checkSeq);
     renderProblems();
+    renderForces();
     if (check) scheduleCheck();
   }
 
@@ -383,7 +398,7 @@
     svg.appendChild(el("text", { x: 0, y: -g.top + fs * 2.9, class: "subtitle", "font-size": fs * 0.85 },
       `${g.cols} bays × ${g.rows} rows ${size ? "· " + size : ""} · supports ${f.supports}`));
     // layers, bottom to top
-    for (const name of ["shade", "blocked", "openings", "frame", "members", "offers", "marks", "cursor", "labels"]) {
+    for (const name of ["shade", "blocked", "openings", "frame", "util", "members", "offers", "marks", "cursor", "labels"]) {
       svg.appendChild(el("g", { id: `layer-${name}`, class: `layer-${name}` }));
     }
     const frameLayer = $("layer-frame");
@@ -450,6 +465,7 @@
     const critical = new Set();
     const verdict = f.verdict && f.verdict.verdict;
     if (verdict) for (const m of verdict.critical_members) critical.add(key(m.row, m.col, m.diagonal));
+    const rated = utilisationView(f);
     html = "";
     let marks = "";
     for (const [k, m] of f.members) {
@@ -457,7 +473,9 @@
       const R = Number(r), C = Number(c);
       if (R > g.rows || C > g.cols) continue;
       const [x1, y1, x2, y2] = ends(g, R, C, d);
-      const cls = `member ${m.kind}${m.existing ? "" : " planned"}${state.selected.has(k) ? " picked" : ""}`;
+      const bar = rated && rated.diagonals.get(k);
+      const util = bar ? ` rated${bar.over ? " over" : ""}" data-colour="${bar.colour}" data-util="${bar.utilisation ?? ""}` : "";
+      const cls = `member ${m.kind}${m.existing ? "" : " planned"}${state.selected.has(k) ? " picked" : ""}${util}`;
       html += `<line x1="${x1}" y1="${y1}" x2="${x2}" y2="${y2}" class="${cls}" data-key="${k}"/>`;
       if (critical.has(k)) {
         const t = 0.28;
@@ -467,9 +485,76 @@
     }
     $("layer-members").innerHTML = html;
     $("layer-marks").innerHTML = marks;
+    $("layer-util").innerHTML = rated ? gridBarsHtml(g, rated.grid) : "";
+    // colours go in through the CSS object model: the page's policy allows no inline style attributes
+    for (const line of document.querySelectorAll("#grid [data-colour]")) line.style.stroke = line.dataset.colour;
     renderOffers();
     renderShade();
     renderCursor();
+  }
+
+  // The utilisation view of the current frame: diagonals by bay key, rated grid bars; null when off.
+  function utilisationView(f) {
+    if (!f.forces || !f.forces.available || !$("colour-util").checked) return null;
+    const diagonals = new Map();
+    const grid = [];
+    for (const b of f.forces.bars) {
+      if (b.kind === "tie" || b.kind === "brace") diagonals.set(key(b.row, b.col, b.diagonal), b);
+      else if (b.utilisation !== null) grid.push(b);
+    }
+    return { diagonals, grid };
+  }
+
+  function gridBarsHtml(g, bars) {
+    let html = "";
+    for (const b of bars) {
+      let x1, y1, x2, y2;
+      if (b.kind === "standard") { x1 = x2 = g.xs[b.line]; y1 = sy(g, g.ys[b.row - 1]); y2 = sy(g, g.ys[b.row]); }
+      else { y1 = y2 = sy(g, g.ys[b.line]); x1 = g.xs[b.col - 1]; x2 = g.xs[b.col]; }
+      if (x1 === undefined || y1 === undefined) continue;
+      html += `<line x1="${x1}" y1="${y1}" x2="${x2}" y2="${y2}" class="grid-util${b.over ? " over" : ""}" data-colour="${b.colour}" data-bar="${esc(b.label)}" data-util="${b.utilisation}"><title>${esc(b.label)}: ${(100 * b.utilisation).toFixed(0)} % (${esc(b.case)})</title></line>`;
+    }
+    return html;
+  }
+
+  function renderForces() {
+    const f = frame();
+    const card = $("forces-card");
+    card.hidden = !f.loadCases.length;
+    if (card.hidden) return;
+    const box = $("forces-state");
+    const list = $("forces-cases");
+    list.textContent = "";
+    $("forces-limits").textContent = "";
+    const fc = f.forces;
+    if (!fc) {
+      box.dataset.state = "pending";
+      box.textContent = f.verdict ? "analysing the load cases…" : "Forces follow the verdict";
+      return;
+    }
+    if (!fc.available) {
+      box.dataset.state = "invalid";
+      box.textContent = `No forces: ${fc.reason}`;
+      $("forces-limits").textContent = fc.model_limits || "";
+      return;
+    }
+    box.dataset.state = fc.ok ? "stable" : "unstable";
+    const u = fc.max_utilisation;
+    const gov = fc.governing ? ` in ${fc.governing.label}, ${fc.governing.case}` : "";
+    box.textContent = u === null
+      ? "No capacities given: forces only (see bracegrid forces)"
+      : `${fc.ok ? "Within capacity" : "Not within capacity"}: largest utilisation ${(100 * u).toFixed(0)} %${gov}`;
+    for (const c of fc.cases) {
+      const li = document.createElement("li");
+      const word = c.mechanism ? "mechanism" : (c.ok ? "ok" : "over");
+      li.dataset.state = word;
+      li.textContent = `${c.title}: ${c.mechanism ? "a mechanism (see the verdict)" : (c.max_utilisation === null ? "no capacities" : `${(100 * c.max_utilisation).toFixed(0)} %`)}${word === "over" ? " — over capacity or uplift" : ""}`;
+      list.appendChild(li);
+    }
+    const stops = fc.ramp.map(([at, col]) => `${col} ${100 * at}%`).join(", ");
+    $("forces-ramp").style.background = `linear-gradient(to right, ${stops})`;
+    $("forces-over").style.background = fc.over_colour;
+    $("forces-limits").textContent = fc.model_limits;
   }
 
   function renderShade() {
@@ -492,7 +577,7 @@
         let x, y, anchor = "start";
         if (p.rows.length) { x = g.W + g.font * 0.6; y = sy(g, (g.ys[p.rows[0] - 1] + g.ys[p.rows[0]]) / 2) + g.font * 0.35; }
         else { const c = p.columns[0]; x = (g.xs[c - 1] + g.xs[c]) / 2; y = g.H + g.font * (frame().supports === "base" ? 4.2 : 3.2); anchor = "middle"; }
-        html += `<text x="${x}" y="${y}" font-size="${g.font * 0.9}" text-anchor="${anchor}" fill="${colour}" class="loose-tag">L${i + 1} ${sense}</text>`;
+        html += `<text x="${x}" y="${y}" font-size="${g.font * 0.9}" text-anchor="${anchor}" fill="${colour}" class="loose-tag">M${i + 1} ${sense}</text>`;
       });
     }
     $("layer-shade").innerHTML = html;
@@ -555,7 +640,7 @@
       sw.className = "swatch";
       sw.dataset.part = String(i % PART_COLOURS.length);
       li.appendChild(sw);
-      li.appendChild(document.createTextNode(`L${i + 1}: ${p.description}`));
+      li.appendChild(document.createTextNode(`M${i + 1}: ${p.description}`));
       loose.appendChild(li);
     });
     if (v.stable) {
@@ -930,6 +1015,7 @@
 
   function wire() {
     const svg = $("grid");
+    $("colour-util").addEventListener("change", () => renderMembers());
     svg.addEventListener("pointerdown", onPointerDown);
     svg.addEventListener("pointermove", onPointerMove);
     svg.addEventListener("pointerup", onPointerUp);
