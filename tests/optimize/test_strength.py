@@ -216,3 +216,42 @@ def test_optimize_json_keys(tmp_path: Path, capsys: pytest.CaptureFixture[str]) 
     assert "plastic check FAILS" in out
     assert "layout found for stability alone" in out
     assert "wind (+): plastic" in out
+
+
+def test_compare_prices_strength_and_checks_the_baseline() -> None:
+    """Beside the strength-aware optimum, stable-only is cheaper and fails; the baseline says how it fares."""
+    from bracegrid.compare import StrategyKey, compare_frame
+    from bracegrid.compare.strategies import shortfall_words
+
+    frame = Frame(
+        "face", (2500,) * 6, (2000,) * 3, supports=Supports.BASE,
+        loads=(LoadCase("wind", (0.0, 3.0, 3.0, 2.0), reverse=True, gravity_kn=(6.0,) * 7),),
+    )  # fmt: skip
+    strength = _strength(standard_kn=30.0, ledger_kn=3.0, uplift_kn=5.0)
+    fc = compare_frame(frame, CostCatalogue(), options=FAST, strength=strength)
+    mixed, alone = fc.result(StrategyKey.MIXED), fc.result(StrategyKey.STABLE_ONLY)
+    base = fc.result(StrategyKey.BASELINE)
+    assert mixed.check is not None
+    assert alone.check is not None
+    assert base.check is not None
+    assert mixed.check.plastic_ok
+    assert not alone.check.plastic_ok
+    assert alone.cost is not None
+    assert mixed.cost is not None
+    assert alone.cost <= mixed.cost  # here an equal-cost layout carries the loads; stable-only found another
+    assert not alone.check.searched
+    assert mixed.check.searched
+    assert "against the loads:" in base.note
+    assert shortfall_words(base.check) in base.note
+    if not (base.check.plastic_ok and base.check.elastic_ok):
+        assert "fails" in base.note
+
+
+def test_web_request_passes_stability_only() -> None:
+    from bracegrid.web.requests import RequestError, job_request
+
+    got = job_request({"frame": {"name": "f"}, "stability_only": True})
+    assert got.options.stability_only is True
+    assert job_request({"frame": {"name": "f"}}).options.stability_only is False
+    with pytest.raises(RequestError):
+        job_request({"frame": {"name": "f"}, "stability_only": "yes"})

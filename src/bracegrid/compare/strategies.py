@@ -317,7 +317,7 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
                           seconds=time.perf_counter() - t0, note=note)  # fmt: skip
 
 
-def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> StrategyResult:
+def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None, *, searched: bool) -> StrategyResult:
     """The result with its layout's member forces and strength checks, where the frame has loads.
 
     The baseline's note then says whether it carries the loads, and by how much it fails.
@@ -325,7 +325,8 @@ def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> 
     layout = result.frame
     if strength is None or layout is None or not layout.loads:
         return result
-    check = strength_check(layout, strength, layout.members)
+    alone = result.key in (StrategyKey.STABLE_ONLY, StrategyKey.BASELINE)
+    check = strength_check(layout, strength, layout.members, searched=searched and not alone)
     forces = None if missing_stiffness(layout, strength, layout.members) else analyse_frame(layout, strength)
     note = result.note
     if result.key is StrategyKey.BASELINE and check is not None:
@@ -391,7 +392,8 @@ def compare_frame(
             results.append(_baseline(frame, costs, options))
         else:
             results.append(_optimized(key, frame, costs, options, strength))
-    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength) for r in results))
+    searched = not options.stability_only
+    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength, searched=searched) for r in results))
 
 
 def compare_project(
