@@ -81,6 +81,8 @@ MASTER_GAP = 0.01
 #: Add the cuts of every image of each Farkas ray (moved by whole bays, mirrored): measured on the
 #: uniform 30 x 15 face, without them the master moves the bracing one bay per round.
 USE_IMAGES = True
+#: Share of the time limit one pruning of a repaired layout may take.
+PRUNE_SHARE = 0.1
 #: Capacity shares the greedy repair tries in turn until its layout passes the elastic check too.
 REPAIR_MARGINS = (1.0, 0.85, 0.7, 0.55)
 #: Capacity share the plastic model may use once the margin heuristic is on (measured on the demo:
@@ -357,8 +359,14 @@ def solve_strength(
     workers: int,
     seed: int,
     report: Report,
+    start: Sequence[Member] = (),
+    floor: int = 0,
 ) -> StrengthFound:
     """The cheapest layout meeting stability, redundancy, rules and (with ``use_loads``) every load case.
+
+    ``start`` (new members of a stable layout, e.g. the stability-only optimum) seeds the master's hint
+    and, repaired, a first incumbent; ``floor`` is a proven lower bound on the added cost known
+    beforehand (the stability-only bound: every layout here is stable too).
 
     Raises:
         InfeasibleError: With reasons in words, when the rules or the loads rule every layout out.
@@ -384,7 +392,7 @@ def solve_strength(
     best: list[bool] | None = None
     best_cost: int | None = None
     plastic_only: list[bool] | None = None
-    bound = 0
+    bound = floor
     rounds = 0
     excluded = 0
     proven = False
@@ -396,7 +404,55 @@ def solve_strength(
     images = USE_IMAGES
     started = time.monotonic()
     exact_until = started + EXACT_SHARE * max(0.0, deadline - started)
-    while True:
+
+    def incumbent(start_from: list[bool]) -> tuple[tuple[list[bool], int] | None, list[bool] | None]:
+        """(a layout passing both checks and its cost, else None; a plastic-only layout met on the way).
+
+        The answer is repaired greedily until it carries every case, with a growing margin on the
+        capacities until the elastic check passes too, then pruned (heuristic; only the master
+        proves anything). Cuts of the real model met on the way go to the master.
+        """
+        assert pf is not None
+        fallback = None
+        for factor in REPAIR_MARGINS:
+            if factor not in scaled:
+                scaled[factor] = plastic_frame(frame, _scaled_strength(strength, factor), cands)
+            met: list[CapacityCut] = []
+            fixed = _repair(scaled[factor], table, rows, start_from, deadline, met)
+            if factor == 1.0:
+                for cut in met:  # cuts of the real model: valid for every layout
+                    master.add_cut(cut)
+            if fixed is None:
+                break
+            cost = sum(unit_cost(table, c) for c, on in zip(cands, fixed, strict=True) if on)
+            if best_cost is not None and cost >= best_cost:
+                break
+            if _elastic_ok(frame, strength, cands, fixed, elastic_needed):
+                until = min(deadline, time.monotonic() + PRUNE_SHARE * max(0.0, deadline - started))
+                lean = _prune(scaled[factor], table, rows, k, fixed, until)
+                if lean != fixed and _elastic_ok(frame, strength, cands, lean, elastic_needed):
+                    fixed = lean
+                    cost = sum(unit_cost(table, c) for c, on in zip(cands, fixed, strict=True) if on)
+                return (fixed, cost), fallback
+            fallback = fallback or fixed
+        return None, fallback
+
+    seed_layout = _flags(cands, start)
+    if seed_layout is not None and _meets_rows(rows, cands, seed_layout):
+        if pf is None:
+            best, best_cost = (
+                seed_layout,
+                sum(unit_cost(table, c) for c, on in zip(cands, seed_layout, strict=True) if on),
+            )
+        else:
+            found_layout, plastic_only = incumbent(seed_layout)
+            if found_layout is not None:
+                best, best_cost = found_layout
+        if best_cost is not None:
+            master.below(best_cost)
+    if best_cost is not None and bound >= best_cost:
+        proven, bound = True, best_cost
+    while not proven:
         remaining = deadline - time.monotonic()
         if remaining <= 0.01:
             break
@@ -452,28 +508,11 @@ def solve_strength(
         for cut in cuts:
             master.add_cut(cut)
         if cuts and pf is not None and (best is None or rounds % REPAIR_EVERY == 0):
-            # An incumbent: repair the answer greedily until it carries every case, with a growing
-            # margin on the capacities until the elastic check passes too (heuristic; only the
-            # master proves anything).
-            for factor in REPAIR_MARGINS:
-                if factor not in scaled:
-                    scaled[factor] = plastic_frame(frame, _scaled_strength(strength, factor), cands)
-                met: list[CapacityCut] = []
-                fixed = _repair(scaled[factor], table, rows, chosen, deadline, met)
-                if factor == 1.0:
-                    for cut in met:  # cuts of the real model: valid for every layout
-                        master.add_cut(cut)
-                if fixed is None:
-                    break
-                fixed_cost = sum(unit_cost(table, c) for c, on in zip(cands, fixed, strict=True) if on)
-                if best_cost is not None and fixed_cost >= best_cost:
-                    break
-                if _elastic_ok(frame, strength, cands, fixed, elastic_needed):
-                    best, best_cost = fixed, fixed_cost
-                    master.below(fixed_cost)
-                    break
-                if plastic_only is None:
-                    plastic_only = fixed
+            found_layout, fallback = incumbent(chosen)
+            plastic_only = plastic_only or fallback
+            if found_layout is not None:
+                best, best_cost = found_layout
+                master.below(best_cost)
         report(f"strength cuts (round {rounds}, {master.cuts} cuts)", best_cost, bound)
         if sets or cuts:
             continue
@@ -512,6 +551,8 @@ def solve_strength(
     if best_cost is not None:
         bound = min(bound, best_cost)
     pick = best if best is not None else plastic_only
+    if pick is None and pf is not None:
+        pick = _fullest(pf, rows, k, table)
     if pick is None:
         msg = f"frame {frame.name!r}: no layout passed the checks within the time limit; raise the time limit"
         raise SolverLimitError(msg)
@@ -576,6 +617,85 @@ def _repair(
         if not added:
             return None
     return None
+
+
+def _flags(cands: Sequence[Candidate], start: Sequence[Member]) -> list[bool] | None:
+    """The candidates of a layout's new members (None if one of them is no candidate)."""
+    if not start:
+        return None
+    index = {(c.row, c.col, c.diagonal, c.kind): i for i, c in enumerate(cands) if not c.kept}
+    chosen = [c.kept for c in cands]
+    for m in start:
+        i = index.get((m.row, m.col, m.diagonal, m.kind))
+        if i is None:
+            return None
+        chosen[i] = True
+    return chosen
+
+
+def _meets_rows(rows: Sequence[RuleRow], cands: Sequence[Candidate], chosen: Sequence[bool]) -> bool:
+    """Whether a layout meets every spreading rule row."""
+    for r in rows:
+        bays = set(r.bays)
+        inside = [(c.row, c.col) for c, on in zip(cands, chosen, strict=True) if on and (c.row, c.col) in bays]
+        count = len(set(inside)) if r.braced_bays else len(inside)
+        if (r.at_least is not None and count < r.at_least) or (r.at_most is not None and count > r.at_most):
+            return False
+    return True
+
+
+def _fullest(pf: PlasticFrame, rows: Sequence[RuleRow], k: int, table: BayTable) -> list[bool] | None:
+    """Every free diagonal with its strongest member (a brace where allowed), if that layout carries
+    every case and meets the rules' upper limits: the last resort when the time limit came first."""
+    cands = pf.candidates
+    chosen = [c.kept for c in cands]
+    for slot in {(c.row, c.col, c.diagonal) for c in cands if not c.kept}:
+        options = [i for i, c in enumerate(cands) if not c.kept and (c.row, c.col, c.diagonal) == slot]
+        chosen[max(options, key=lambda i: (cands[i].kind is MemberKind.BRACE, pf.tension[i]))] = True
+    for r in rows:
+        if r.at_most is not None:
+            inside = sum(1 for c, on in zip(cands, chosen, strict=True) if on and (c.row, c.col) in set(r.bays))
+            if inside > r.at_most:
+                return None
+    if pf.frame.supports is not Supports.BASE and violated_cuts(table, additions_of(table, cands, chosen), k):
+        return None
+    if any(farkas_ray(pf, load, chosen) is not None for load in pf.loads):
+        return None
+    return chosen
+
+
+def _prune(
+    pf: PlasticFrame, table: BayTable, rows: Sequence[RuleRow], k: int, start: Sequence[bool], deadline: float
+) -> list[bool]:
+    """Take out the dearest members one by one while the layout stays stable, within the rules and carries
+    every case (a local improvement of a repaired layout; the caller re-runs the elastic check)."""
+    cands = pf.candidates
+    cur = list(start)
+    lows = [(set(r.bays), r.at_least, r.braced_bays) for r in rows if r.at_least is not None]
+    frame = pf.frame
+    order = sorted((k_ for k_, on in enumerate(cur) if on and not cands[k_].kept),
+                   key=lambda k_: -unit_cost(table, cands[k_]))  # fmt: skip
+    for idx in order:
+        if time.monotonic() >= deadline:
+            break
+        cur[idx] = False
+        c = cands[idx]
+        ok = True
+        if frame.supports is Supports.BASE:
+            row = [d for d, on in zip(cands, cur, strict=True) if on and d.row == c.row]
+            ok = sum(gives_up(d) for d in row) >= k + 1 and sum(gives_down(d) for d in row) >= k + 1
+        else:
+            ok = not violated_cuts(table, additions_of(table, cands, cur), k)
+        for bays, least, braced in lows if ok else ():
+            inside = [d for d, on in zip(cands, cur, strict=True) if on and (d.row, d.col) in bays]
+            if (len({(d.row, d.col) for d in inside}) if braced else len(inside)) < least:
+                ok = False
+                break
+        if ok and any(farkas_ray(pf, load, cur) is not None for load in pf.loads):
+            ok = False
+        if not ok:
+            cur[idx] = True
+    return cur
 
 
 def plastic_report(frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]) -> tuple[Utilisation, ...]:
