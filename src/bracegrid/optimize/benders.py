@@ -49,7 +49,6 @@ from bracegrid.optimize.capacity import (
     Candidate,
     CapacityCut,
     PlasticFrame,
-    Utilisation,
     arc_capacity,
     cover_cut,
     cut_from,
@@ -696,11 +695,3 @@ def _prune(
         if not ok:
             cur[idx] = True
     return cur
-
-
-def plastic_report(frame: Frame, strength: StrengthCatalogue, members: Sequence[Member]) -> tuple[Utilisation, ...]:
-    """The least utilisation of each case and sense of a layout (the plastic check)."""
-    cands = [Candidate(m.row, m.col, m.diagonal, m.kind, kept=True) for m in members]
-    pf = plastic_frame(frame, strength, cands)
-    chosen = [True] * len(cands)
-    return tuple(min_utilisation(pf, load, chosen) for load in pf.loads)
