@@ -283,6 +283,14 @@ def _parse_allow(text: str | None) -> frozenset[MemberKind] | None:
     return frozenset(kinds[n] for n in names)
 
 
+def _add_stability_only(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument(
+        "--stability-only", action="store_true",
+        help="ignore load cases, capacities and spreading rules: the cheapest stable layout (the price of "
+        "stability alone); the layouts are still checked against the loads and the result says so",
+    )  # fmt: skip
+
+
 def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
     problems = _solver_problems(args)
     if args.redundancy is not None and args.redundancy < 0:
@@ -314,6 +322,7 @@ def _cmd_optimize(args: argparse.Namespace, out: TextIO) -> int:
         seed=args.seed,
         allow=_parse_allow(args.allow),
         redundancy=args.redundancy,
+        stability_only=args.stability_only,
     )
     live = sys.stderr if (not args.json and sys.stderr.isatty()) else None
 
@@ -465,7 +474,9 @@ def _cmd_compare(args: argparse.Namespace, out: TextIO) -> int:
         "--out", lambda: check_out_folder(DEFAULT_OUT / f"{source.stem}-compare" if args.out is None else args.out)
     )
     check_drawable(frames, per_frame=False)  # each strategy's DXF shows every frame: refuse before solving
-    options = SolveOptions(time_limit=args.time_limit, workers=args.workers, seed=args.seed)
+    options = SolveOptions(
+        time_limit=args.time_limit, workers=args.workers, seed=args.seed, stability_only=args.stability_only
+    )
     total = len(frames) * len(StrategyKey)
     with _progress() as progress:
         task = progress.add_task("comparing", total=total)
@@ -606,6 +617,7 @@ def build_parser() -> argparse.ArgumentParser:
         "--redundancy", type=int, metavar="K",
         help="survive the loss of any K members (1 = N-1; default: each frame's 'redundancy')",
     )  # fmt: skip
+    _add_stability_only(opt)
     opt.set_defaults(handler=_cmd_optimize)
 
     frc = sub.add_parser(
@@ -634,7 +646,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_common(cmp_)
     _add_solver_options(
         cmp_, per="strategy's solve of each frame (the search only)",
-        whole="the whole run may take up to 5 x S x the number of frames, plus the drawing (seconds)",
+        whole="the whole run may take up to 6 x S x the number of frames, plus the drawing (seconds)",
     )  # fmt: skip
     cmp_.add_argument(
         "--out", metavar="DIR", help="folder for the files (default: out/<project>-compare/ in the current directory)"
@@ -644,6 +656,7 @@ def build_parser() -> argparse.ArgumentParser:
         "--samples", type=int, default=COMPARE_SAMPLES, metavar="N",
         help=f"Monte Carlo samples per robustness curve in the report (default {COMPARE_SAMPLES}; 0 leaves them out)",
     )  # fmt: skip
+    _add_stability_only(cmp_)
     cmp_.set_defaults(handler=_cmd_compare)
 
     rob = sub.add_parser(

@@ -117,13 +117,13 @@ def test_cli_writes_csv_dxf_per_strategy_and_self_contained_html(tmp_path: Path)
     data = json.loads(out.getvalue())
     (frame,) = data["frames"]
     keys = [s["key"] for s in frame["strategies"]]
-    assert keys == ["braces-only", "ties-only", "mixed", "mixed-redundant", "baseline"]
+    assert keys == ["braces-only", "ties-only", "mixed", "stable-only", "mixed-redundant", "baseline"]
     for s in frame["strategies"]:
         assert {"key", "cost", "stable", "status", "gap", "seconds", "braces", "ties"} <= set(s)
         assert s["stable"] is True
     folder = tmp_path / "o"
     csv_lines = (folder / "yard-compare.csv").read_text(encoding="utf-8").splitlines()
-    assert len(csv_lines) == 1 + 5
+    assert len(csv_lines) == 1 + 6
     for key in keys:
         doc = ezdxf.readfile(folder / f"yard-{key}.dxf")
         auditor = doc.audit()  # ezdxf's own auditor is the reference reader
@@ -132,7 +132,7 @@ def test_cli_writes_csv_dxf_per_strategy_and_self_contained_html(tmp_path: Path)
     parser = _Collect()
     parser.feed(page)
     # one figure (frame drawing and legend) per strategy, one robustness plot
-    assert parser.tags.count("figure") == 5 + 1
+    assert parser.tags.count("figure") == 6 + 1
     assert "table" in parser.tags
     assert parser.external == []  # no network fetches: nothing loaded from elsewhere
     assert "licensed engineer" in page
@@ -259,8 +259,8 @@ def test_report_is_small_real_text_and_each_bill_once(tmp_path: Path) -> None:
     parser = _Collect()
     parser.feed(page)
     forces = page.count("<h4>Member forces</h4>")  # the demo has load cases: a force figure per layout
-    assert parser.tags.count("figure") == 10 + forces  # two frames x five strategies
-    assert page.count("<h4>Bill of materials</h4>") == 10
+    assert parser.tags.count("figure") == 12 + forces  # two frames x six strategies
+    assert page.count("<h4>Bill of materials</h4>") == 12
     assert "BILL OF MATERIALS" not in page  # the sheet's table is not drawn into the figures
     assert parser.tags.count("path") < 2000  # lines and symbols only, no glyph outlines
     assert page.count(">street face: Ties only</title>") == 1
@@ -282,4 +282,4 @@ def test_help_says_what_the_time_limit_bounds() -> None:
         assert main(["compare", "--help"]) == 0
     text = " ".join(out.getvalue().split())
     assert "each strategy's solve of each frame" in text
-    assert "the whole run may take up to 5 x S x the number of frames" in text
+    assert "the whole run may take up to 6 x S x the number of frames" in text

@@ -145,7 +145,7 @@ def test_inline_drawings_have_unique_ids(comparison: Comparison, parsed: _Report
     # Every strategy of every frame draws one figure (its drawing and legend); the symbols are defined
     # once per page, so no id repeats.
     assert parsed.tags["figure"] == sum(1 for fc in comparison.frames for s in fc.strategies if s.frame is not None)
-    assert parsed.tags["figure"] == len(StrategyKey)  # the open frame's five layouts
+    assert parsed.tags["figure"] == len(StrategyKey)  # the open frame's six layouts
     ids = [v for _, name, v in parsed.attrs if name == "id"]
     duplicates = [i for i, n in Counter(ids).items() if n > 1]
     assert duplicates == []

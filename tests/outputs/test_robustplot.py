@@ -68,12 +68,12 @@ def test_json_shape_of_every_kind_of_result() -> None:
 
 
 def test_compare_section_holds_the_strategy_curves() -> None:
-    # The whole report (with its five sheet previews) is parsed in tests/compare/test_strategies.py;
+    # The whole report (with its six sheet previews) is parsed in tests/compare/test_strategies.py;
     # here the section the robustness hook adds, on its own.
     project = Project("yard", (Frame("bay line", (3000,) * 3, (2000,) * 2, supports=Supports.BASE),))
     comparison = compare_project(project, options=SolveOptions(time_limit=3, workers=1, seed=0))
     curves = compare_robustness(comparison, options=RobustnessOptions(samples=200))
-    assert len(curves) == 5
+    assert len(curves) == 6
     assert all(c.result.stable for c in curves)
     assert [p.title for p in strategy_panels(curves)] == ["bay line: members lost at random"]
     section = _robustness_section(curves)
@@ -88,6 +88,6 @@ def test_compare_section_holds_the_strategy_curves() -> None:
     parser.feed(section)
     assert parser.svg == 1
     assert section.startswith("<h2>Robustness: members lost at random</h2>")
-    assert section.count("<li>") == 5
+    assert section.count("<li>") == 6
     assert "E[losses to mechanism]" in section
     assert 'id="robust-' in section  # ids scoped so they cannot clash with the sheet drawings

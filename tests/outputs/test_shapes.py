@@ -41,11 +41,12 @@ VERDICT_KEYS = {
 FRAME_SOLUTION_KEYS = {
     "name", "status", "cost", "added_cost", "bound", "gap", "seconds", "method", "stable", "redundancy", "braces",
     "ties", "new_braces", "new_ties", "diagonal_length_m", "critical_members", "removed", "members",
+    "carries_loads", "utilisation", "strength",
 }  # fmt: skip
 STRATEGY_KEYS = {
     "key", "status", "cost", "saving", "stable", "braces", "ties", "diagonal_length_m", "critical_members",
     "redundancy", "bound", "gap", "seconds", "note", "max_utilisation", "max_drift", "within_capacity",
-    "kept_braces", "kept_ties", "added_braces", "added_ties",
+    "kept_braces", "kept_ties", "added_braces", "added_ties", "carries_loads", "utilisation",
 }  # fmt: skip
 
 CHAIN = (Member(1, 1, T, R), Member(1, 2, T, F), Member(2, 2, T, R))  # THEORY.md: floppy 2 x 2

@@ -334,7 +334,7 @@ def test_compare_writes_its_files_into_the_output_folder_with_links(shed: Path) 
         done = state["events"][-1]
         assert state["state"] == "done", done
         steps = [e for e in state["events"] if e["type"] == "progress"]
-        assert [e["step"] for e in steps] == [1, 2, 3, 4, 5]
+        assert [e["step"] for e in steps] == [1, 2, 3, 4, 5, 6]
         names = [f["name"] for f in done["files"]]
         assert "report.html" in names
         assert "orchard-shed-compare.csv" in names
@@ -347,7 +347,14 @@ def test_compare_writes_its_files_into_the_output_folder_with_links(shed: Path) 
         dxf = next(f for f in done["files"] if f["name"].endswith(".dxf"))
         assert "attachment" in client.get(f"{dxf['href']}?t={TOKEN}").headers["content-disposition"]
     strategies = done["frames"][0]["strategies"]
-    assert [s["key"] for s in strategies] == ["braces-only", "ties-only", "mixed", "mixed-redundant", "baseline"]
+    assert [s["key"] for s in strategies] == [
+        "braces-only",
+        "ties-only",
+        "mixed",
+        "stable-only",
+        "mixed-redundant",
+        "baseline",
+    ]
 
 
 def test_cancel_stops_the_worker_at_once_and_a_second_job_waits(tmp_path: Path) -> None:

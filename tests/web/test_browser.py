@@ -295,7 +295,7 @@ def test_compare_links_and_cancel(page: Any, served: tuple[str, Path]) -> None:
     page.fill("#time-limit", "2")
     page.click("#compare")
     page.wait_for_selector("#compare-card:not([hidden])", timeout=120000)
-    assert page.locator("#compare-table tbody tr").count() == 5
+    assert page.locator("#compare-table tbody tr").count() == 6
     names = page.locator("#compare-files a").all_inner_texts()
     assert "report.html" in names
     assert (project.parent / "out" / "orchard-shed-edit" / "report.html").exists()

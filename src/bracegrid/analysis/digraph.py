@@ -623,3 +623,36 @@ def strong_bottleneck(arcs: ArcSet, weight: FloatArray) -> FloatArray:
         backward = _maximin_from_root(arcs.dst, arcs.src, w, arcs.nodes)
         out[rest] = np.minimum(forward, backward)
     return out
+
+
+def short_supply_set(nodes: int, src: IntArray, dst: IntArray, capacity: IntArray, supply: IntArray) -> frozenset[int]:
+    """A node set whose net supply exceeds the capacity of the arcs leaving it (empty if none).
+
+    Gale's feasibility theorem (Ahuja, Magnanti & Orlin, *Network Flows*, 1993, sec. 6.2): a
+    flow meeting every supply (+) and demand (-) within the arc capacities exists iff no node set
+    S has ``supply(S) > capacity(arcs leaving S)``. One maximum flow from a super source (arcs to
+    each supply) to a super sink (arcs from each demand) finds such a set when the flow falls short:
+    the source side of the residual graph. Capacities and supplies are whole numbers (scaled by
+    the caller); supplies should sum to 0.
+
+    Example:
+        >>> sorted(short_supply_set(2, np.array([0]), np.array([1]), np.array([3]), np.array([5, -5])))
+        [0]
+        >>> short_supply_set(2, np.array([0]), np.array([1]), np.array([5]), np.array([5, -5]))
+        frozenset()
+    """
+    source, sink = nodes, nodes + 1
+    plus = np.flatnonzero(supply > 0)
+    minus = np.flatnonzero(supply < 0)
+    tails = np.concatenate([src, np.full(len(plus), source), minus]).astype(np.int64)
+    heads = np.concatenate([dst, plus, np.full(len(minus), sink)]).astype(np.int64)
+    caps = np.concatenate([capacity, supply[plus], -supply[minus]]).astype(np.int64)
+    if caps.size and int(caps.max()) >= 2**31:
+        msg = "capacities must fit 32 bits: scale them down"
+        raise ValueError(msg)
+    graph = csr_matrix((caps.astype(np.int32), (tails, heads)), shape=(nodes + 2, nodes + 2))
+    result = maximum_flow(graph, source, sink)
+    if int(result.flow_value) >= int(supply[plus].sum()):
+        return frozenset()
+    side = reachable((graph - result.flow).tocsr(), source)
+    return frozenset(int(v) for v in side if v < nodes)

@@ -1,15 +1,22 @@
 """Strategies: alternative bracing layouts for a frame, solved and costed side by side.
 
-Five strategies per frame, each re-verified by the stability check:
+Six strategies per frame, each re-verified by the stability check:
 
 1. ``braces-only``: rigid braces only (the optimizer, allow = brace);
 2. ``ties-only``: tension-only ties only;
 3. ``mixed``: the optimizer's free choice of braces and ties;
-4. ``mixed-redundant``: mixed, and stable after the loss of any one member
+4. ``stable-only``: mixed, for stability alone: load cases, capacities and spreading rules
+   ignored, so that beside ``mixed`` the price of strength is visible;
+5. ``mixed-redundant``: mixed, and stable after the loss of any one member
    (or of the frame's own ``redundancy`` if that is higher);
-5. ``baseline``: the rule-of-thumb layout of :mod:`bracegrid.compare.baseline`
+6. ``baseline``: the rule-of-thumb layout of :mod:`bracegrid.compare.baseline`
    (common practice, no source), repaired at least cost when it leaves a
    mechanism, and reported as drawn plus the repair.
+
+Where the project gives load cases with capacities, or spreading rules, every optimized strategy
+but ``stable-only`` must carry the loads and follow the rules (unless the options ask for stability
+only), and every layout, the baseline's included, is checked plastically and elastically
+(:func:`bracegrid.optimize.strength_check`); the baseline's note says by how much it fails.
 
 Strategies override the frame's ``allow`` list: the point is to price the
 alternatives. Members in place (``status = "existing"``) are kept in every
@@ -23,6 +30,7 @@ frame.
 from __future__ import annotations
 
 import dataclasses
+import math
 import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -43,7 +51,7 @@ from bracegrid.model import (
     layout_cost_cents,
     layout_length_mm,
 )
-from bracegrid.optimize import FrameSolution, SolveOptions, SolveStatus, optimize_frame
+from bracegrid.optimize import FrameSolution, SolveOptions, SolveStatus, StrengthCheck, optimize_frame, strength_check
 
 
 class StrategyKey(Enum):
@@ -52,6 +60,7 @@ class StrategyKey(Enum):
     BRACES_ONLY = "braces-only"
     TIES_ONLY = "ties-only"
     MIXED = "mixed"
+    STABLE_ONLY = "stable-only"
     MIXED_REDUNDANT = "mixed-redundant"
     BASELINE = "baseline"
 
@@ -85,6 +94,7 @@ _TITLES = {
     StrategyKey.BRACES_ONLY: "Rigid braces only",
     StrategyKey.TIES_ONLY: "Ties only",
     StrategyKey.MIXED: "Mixed (optimized)",
+    StrategyKey.STABLE_ONLY: "Mixed, stability alone (loads and rules ignored)",
     StrategyKey.MIXED_REDUNDANT: "Mixed, survives loss of any one member",
     StrategyKey.BASELINE: "Rule of thumb",
 }
@@ -115,6 +125,7 @@ class StrategyResult:
         kept_ties: Ties already in place, kept by every strategy.
         forces: The layout's member forces under the frame's load cases (None without loads, or
             when the project lacks a stiffness the layout needs).
+        check: The plastic and elastic strength checks of the layout (None without load cases).
     """
 
     key: StrategyKey
@@ -134,6 +145,7 @@ class StrategyResult:
     kept_braces: int = 0
     kept_ties: int = 0
     forces: FrameForces | None = None
+    check: StrengthCheck | None = None
 
     @property
     def added_braces(self) -> int:
@@ -255,7 +267,9 @@ def _infeasible(key: StrategyKey, seconds: float, reason: str) -> StrategyResult
     )  # fmt: skip
 
 
-def _optimized(key: StrategyKey, frame: Frame, costs: CostCatalogue, options: SolveOptions) -> StrategyResult:
+def _optimized(
+    key: StrategyKey, frame: Frame, costs: CostCatalogue, options: SolveOptions, strength: StrengthCatalogue | None
+) -> StrategyResult:
     allow = {
         StrategyKey.BRACES_ONLY: frozenset({MemberKind.BRACE}),
         StrategyKey.TIES_ONLY: frozenset({MemberKind.TIE}),
@@ -263,7 +277,11 @@ def _optimized(key: StrategyKey, frame: Frame, costs: CostCatalogue, options: So
     k = max(1, frame.redundancy) if key is StrategyKey.MIXED_REDUNDANT else 0
     t0 = time.perf_counter()
     try:
-        sol = optimize_frame(frame, costs, options=dataclasses.replace(options, allow=allow, redundancy=k))
+        alone = options.stability_only or key is StrategyKey.STABLE_ONLY
+        sol = optimize_frame(
+            frame, costs, options=dataclasses.replace(options, allow=allow, redundancy=k, stability_only=alone),
+            strength=strength,
+        )  # fmt: skip
     except InfeasibleError as exc:
         return _infeasible(key, time.perf_counter() - t0, "; ".join(exc.reasons))
     return _from_solution(key, frame, costs, sol)
@@ -299,14 +317,45 @@ def _baseline(frame: Frame, costs: CostCatalogue, options: SolveOptions) -> Stra
                           seconds=time.perf_counter() - t0, note=note)  # fmt: skip
 
 
-def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None) -> StrategyResult:
-    """The result with its layout's member forces, where the frame has loads and the stiffness is given."""
+def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None, *, searched: bool) -> StrategyResult:
+    """The result with its layout's member forces and strength checks, where the frame has loads.
+
+    The baseline's note then says whether it carries the loads, and by how much it fails.
+    """
     layout = result.frame
     if strength is None or layout is None or not layout.loads or not layout.is_complete:
         return result
-    if missing_stiffness(layout, strength, layout.members):
-        return result
-    return dataclasses.replace(result, forces=analyse_frame(layout, strength))
+    alone = result.key in (StrategyKey.STABLE_ONLY, StrategyKey.BASELINE)
+    check = strength_check(layout, strength, layout.members, searched=searched and not alone)
+    forces = None if missing_stiffness(layout, strength, layout.members) else analyse_frame(layout, strength)
+    note = result.note
+    if result.key is StrategyKey.BASELINE and check is not None:
+        note = f"{note}; {shortfall_words(check)}" if note else shortfall_words(check)
+    return dataclasses.replace(result, forces=forces, check=check, note=note)
+
+
+def shortfall_words(check: StrengthCheck) -> str:
+    """Whether a layout carries its loads and, if not, by how much it falls short, in words.
+
+    Example:
+        >>> from bracegrid.optimize import CaseCheck
+        >>> shortfall_words(StrengthCheck((CaseCheck("w (+)", 2.5, "ledger p3 c1", 1.2, "ledger p3 c1", False),)))
+        'against the loads: plastic 2.50 (w (+), ledger p3 c1), elastic 1.20 (w (+), ledger p3 c1): fails, 150% over'
+    """
+    plastic = max(check.cases, key=lambda c: math.inf if c.plastic is None else c.plastic)
+    rated = [c for c in check.cases if c.elastic is not None]
+    elastic = max(rated, key=lambda c: c.elastic or 0.0) if rated else None
+    p = "no admissible force set" if plastic.plastic is None else f"{plastic.plastic:.2f}"
+    parts = f"plastic {p} ({plastic.title}, {plastic.plastic_member})"
+    if elastic is not None:
+        parts += f", elastic {elastic.elastic:.2f} ({elastic.title}, {elastic.elastic_member})"
+    elif check.elastic_note:
+        parts += f", elastic not run ({check.elastic_note})"
+    if check.plastic_ok and check.elastic_ok:
+        return f"against the loads: {parts}: carries them"
+    worst = max((v for v in (plastic.plastic, elastic.elastic if elastic else None) if v is not None), default=None)
+    over = "" if worst is None or worst <= 1.0 else f", {100 * (worst - 1.0):.0f}% over"
+    return f"against the loads: {parts}: fails{over}"
 
 
 def compare_frame(
@@ -342,8 +391,9 @@ def compare_frame(
         if key is StrategyKey.BASELINE:
             results.append(_baseline(frame, costs, options))
         else:
-            results.append(_optimized(key, frame, costs, options))
-    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength) for r in results))
+            results.append(_optimized(key, frame, costs, options, strength))
+    searched = not options.stability_only
+    return FrameComparison(frame=frame, strategies=tuple(_with_forces(r, strength, searched=searched) for r in results))
 
 
 def compare_project(

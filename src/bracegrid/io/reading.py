@@ -26,6 +26,7 @@ from shapely.validation import explain_validity
 
 import bracegrid.io.general as general
 import bracegrid.io.loads as loads
+import bracegrid.io.rules as rules
 from bracegrid.errors import InputError
 from bracegrid.io.positions import Positions, locate
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
@@ -54,7 +55,7 @@ _RATE_KEYS = {"per_piece", "per_metre", "labour_per_piece"} | loads.RATE_KEYS
 _FRAME_KEYS = {
     "name", "widths", "heights", "supports", "blocked", "allow", "opening",
     "member", "opening_overlap", "redundancy",
-} | loads.FRAME_KEYS | general.FRAME_KEYS  # fmt: skip
+} | loads.FRAME_KEYS | general.FRAME_KEYS | rules.FRAME_KEYS  # fmt: skip
 _OPENING_KEYS = {"name", "polygon"}
 _MEMBER_KEYS = {"row", "col", "kind", "diagonal", "status"}
 _STATUS = {"existing": True, "proposed": False}
@@ -654,6 +655,7 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
         before = len(col.problems)
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
+            got = rules.add_frame_rules(col, got, raw, where=f"frame {got.name!r}")
             got = loads.add_frame_loads(col, got, raw, index=index, text=text)
             got = general.add_frame_general(col, got, raw, index=index, text=text)
             frames.append(got)

@@ -23,6 +23,7 @@ from bracegrid.io.loads import frame_load_fields, grid_table, strength_fields
 from bracegrid.io.reading import parse_project
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import robustness_table
+from bracegrid.io.rules import frame_rule_fields
 from bracegrid.model import CostRate, Diagonal, Frame, Member, MemberKind, Project
 from bracegrid.units import MM_PER_UNIT
 
@@ -60,6 +61,7 @@ def _frame(frame: Frame, unit: str) -> dict[str, Any]:
         ]
     if frame.members:
         out["member"] = [_member(m) for m in frame.members]  # in the frame's own order: it reads back equal
+    out.update(frame_rule_fields(frame))
     out.update(frame_load_fields(frame))
     out.update(frame_general_fields(frame))
     return out

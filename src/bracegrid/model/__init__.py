@@ -26,11 +26,13 @@ from bracegrid.model.gridbars import (
 from bracegrid.model.kinds import Diagonal, Edge, GridBarKind, LoadSense, MemberKind, Racking, Supports
 from bracegrid.model.loads import GridStrength, LoadCase, MemberStrength, StrengthCatalogue
 from bracegrid.model.losses import LossLikelihood
+from bracegrid.model.rules import RULE_FIELDS, SpreadRules
 
 __all__ = [
     "MAX_CONTINGENCY_PCT",
     "MAX_LAYOUT_PRICE",
     "MAX_RATE",
+    "RULE_FIELDS",
     "CostCatalogue",
     "CostRate",
     "Diagonal",
@@ -48,6 +50,7 @@ __all__ = [
     "Opening",
     "Project",
     "Racking",
+    "SpreadRules",
     "StrengthCatalogue",
     "Supports",
     "all_grid_bars",

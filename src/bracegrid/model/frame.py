@@ -14,6 +14,7 @@ from bracegrid.model.costs import CostCatalogue
 from bracegrid.model.kinds import Diagonal, Edge, GridBarKind, MemberKind, Supports
 from bracegrid.model.loads import LoadCase, StrengthCatalogue
 from bracegrid.model.losses import LossLikelihood
+from bracegrid.model.rules import SpreadRules
 from bracegrid.units import cut_length_mm, diagonal_mm
 
 
@@ -130,6 +131,7 @@ class Frame:
         missing: Grid bar segments left out (see :mod:`bracegrid.model.gridbars`).
         absent: Bays outside the frame's outline; their grid bars go with them unless a present
             bay still needs them.
+        rules: Bracing-spread rules the optimizer follows (none by default).
     """
 
     name: str
@@ -144,6 +146,7 @@ class Frame:
     redundancy: int = 0
     loads: tuple[LoadCase, ...] = ()
     held_edges: frozenset[Edge] = frozenset()
+    rules: SpreadRules = SpreadRules()  # noqa: RUF009 - frozen, so one shared default is safe
     missing: frozenset[GridBar] = frozenset()
     absent: frozenset[tuple[int, int]] = frozenset()
 

@@ -34,6 +34,8 @@ class SolveMethod(Enum):
     """The LP relaxation of the cut model (cuts separated on fractional points) and its dive; no CP-SAT round."""
     MECHANISM_CUTS = "mechanism-cuts"
     """A general frame: HiGHS MILP rounds with cuts from mechanisms (exact check) and from the digraph."""
+    STRENGTH_CUTS = "strength-cuts"
+    """CP-SAT over candidate members with stability, rule, capacity (flow and Benders) and elastic cuts."""
 
 
 class SolveStatus(Enum):
@@ -90,6 +92,8 @@ def method_how(method: SolveMethod, *, pattern: PatternKind | None = None, round
     if method is SolveMethod.MECHANISM_CUTS:
         counts = f"{_count(rounds, 'round')}, {_count(cuts, 'cut')}"
         return f"HiGHS MILP with mechanism and directed cuts, exact check ({counts})"
+    if method is SolveMethod.STRENGTH_CUTS:
+        return f"CP-SAT with stability, rule and capacity cuts ({_count(rounds, 'round')}, {_count(cuts, 'cut')})"
     return _METHOD_WORDS[method]
 
 
@@ -118,6 +122,7 @@ class SolveOptions:
             its time limit, the same seed gives the same layout.
         allow: Member kinds that may be added (None = each frame's own ``allow``).
         redundancy: Members whose loss the layout must survive (None = each frame's own).
+        stability_only: Ignore load cases, capacities and spreading rules (the price of stability alone).
     """
 
     time_limit: float = 60.0
@@ -125,6 +130,7 @@ class SolveOptions:
     seed: int = 0
     allow: frozenset[MemberKind] | None = None
     redundancy: int | None = None
+    stability_only: bool = False
 
 
 @dataclass(frozen=True, slots=True)
@@ -167,6 +173,7 @@ class FrameSolution:
         pattern: The closed-form layout used, for the closed-form method.
         rounds: Solver rounds of the cut loop (0 for the exact shortcuts).
         cuts: Cuts in the cut model at the end.
+        strength: Both strength checks of the layout (None: the frame has no load cases).
     """
 
     frame: Frame
@@ -183,6 +190,7 @@ class FrameSolution:
     pattern: PatternKind | None = None
     rounds: int = 0
     cuts: int = 0
+    strength: StrengthCheck | None = None
 
     @property
     def method_text(self) -> str:
@@ -207,3 +215,89 @@ class ProjectSolution:
     frames: tuple[FrameSolution, ...]
     cost: float
     added_cost: float
+
+
+@dataclass(frozen=True, slots=True)
+class CaseCheck:
+    """Both strength checks of one load case in one sense on a returned layout.
+
+    Attributes:
+        title: ``wind (+)``.
+        plastic: Least largest utilisation over admissible force sets (None: no admissible set).
+        plastic_member: The bar at that utilisation, or why there is none.
+        elastic: Largest utilisation in the tension-only elastic analysis (None: not run, a
+            mechanism, or nothing rated).
+        elastic_member: The governing bar of the elastic analysis (with base uplift over its
+            limit named), or why there is none.
+        elastic_ok: Solved with every member and base node within capacity (None: not run).
+    """
+
+    title: str
+    plastic: float | None
+    plastic_member: str
+    elastic: float | None
+    elastic_member: str
+    elastic_ok: bool | None
+
+    @property
+    def plastic_ok(self) -> bool:
+        """Within capacity plastically (to one millionth)."""
+        return self.plastic is not None and self.plastic <= 1.0 + 1e-6
+
+
+@dataclass(frozen=True, slots=True)
+class StrengthCheck:
+    """What the two strength checks say about a layout (only for frames with load cases).
+
+    Attributes:
+        cases: One check per case and sense.
+        elastic_note: Why the elastic analysis did not run ("" when it did).
+        searched: The layout was searched with the loads (False: stability alone was asked).
+    """
+
+    cases: tuple[CaseCheck, ...]
+    elastic_note: str = ""
+    searched: bool = True
+
+    @property
+    def plastic_ok(self) -> bool:
+        """Every case within capacity plastically."""
+        return all(c.plastic_ok for c in self.cases)
+
+    @property
+    def elastic_ok(self) -> bool:
+        """Every case solved elastically within capacity (False when not run)."""
+        return bool(self.cases) and all(c.elastic_ok is True for c in self.cases)
+
+    @property
+    def plastic_max(self) -> float | None:
+        """Largest plastic utilisation over the cases (None if some case has no admissible set)."""
+        values = [c.plastic for c in self.cases]
+        return None if any(v is None for v in values) else max((v for v in values if v is not None), default=0.0)
+
+    @property
+    def elastic_max(self) -> float | None:
+        """Largest elastic utilisation over the cases (None if not run or nothing rated)."""
+        values = [c.elastic for c in self.cases if c.elastic is not None]
+        return max(values) if values else None
+
+    @property
+    def words(self) -> str:
+        """Which checks passed, in words that never claim more than the checks show.
+
+        Example:
+            >>> StrengthCheck((CaseCheck("w (+)", 0.8, "tie r1c1:rising", 1.2, "tie r1c1:rising", False),)).words
+            'plastic check passes (0.80); elastic check FAILS (1.20): not adequate'
+        """
+        p = self.plastic_max
+        if self.plastic_ok:
+            plastic = f"plastic check passes ({p:.2f})"
+        else:
+            plastic = "plastic check FAILS" + (f" ({p:.2f})" if p is not None else " (no admissible force set)")
+        if self.elastic_note:
+            return f"{plastic}; elastic check not run ({self.elastic_note})"
+        e = self.elastic_max
+        shown = f" ({e:.2f})" if e is not None else ""
+        elastic = f"elastic check passes{shown}" if self.elastic_ok else f"elastic check FAILS{shown}"
+        verdict = "carries the loads" if self.plastic_ok and self.elastic_ok else "not adequate"
+        return f"{plastic}; {elastic}: {verdict}"

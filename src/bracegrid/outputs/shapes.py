@@ -36,7 +36,7 @@ from bracegrid.model import (
     layout_cost,
     layout_length_mm,
 )
-from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution
+from bracegrid.optimize import FrameSolution, ProgressEvent, ProjectSolution, StrengthCheck
 from bracegrid.outputs.ramp import OVER_RGB, RAMP, UNRATED_RGB, hex_colour, utilisation_rgb
 from bracegrid.units import length_in_unit, metres
 
@@ -229,6 +229,36 @@ def frame_solution_dict(solution: FrameSolution, costs: CostCatalogue | None = N
         "critical_members": [member_dict(m) for m in solution.verdict.critical_members],
         "removed": [member_dict(m) for m in solution.verdict.removed],
         "members": [optimize_member_dict(m, solution.frame, costs) for m in solution.members],
+        **strength_dicts(solution.strength),
+    }
+
+
+def strength_dicts(check: StrengthCheck | None) -> dict[str, Any]:
+    """The fixed keys ``carries_loads`` and ``utilisation`` (null without load cases) and ``strength``.
+
+    ``strength`` holds the words and, per case and sense, both utilisations and governing members.
+
+    Example:
+        >>> strength_dicts(None)
+        {'carries_loads': None, 'utilisation': None, 'strength': None}
+    """
+    if check is None:
+        return {"carries_loads": None, "utilisation": None, "strength": None}
+    cases = [
+        {
+            "case": c.title,
+            "plastic": _r(c.plastic),
+            "plastic_member": c.plastic_member,
+            "elastic": _r(c.elastic),
+            "elastic_member": c.elastic_member,
+            "elastic_ok": c.elastic_ok,
+        }
+        for c in check.cases
+    ]
+    return {
+        "carries_loads": {"plastic": check.plastic_ok, "elastic": check.elastic_ok},
+        "utilisation": {"plastic": _r(check.plastic_max), "elastic": _r(check.elastic_max)},
+        "strength": {"words": check.words, "searched_with_loads": check.searched, "cases": cases},
     }
 
 
@@ -278,6 +308,8 @@ def compare_rows(comparison: Comparison) -> list[dict[str, Any]]:
                     "max_utilisation": _r(s.forces.max_utilisation) if s.forces else None,
                     "max_drift": _r(s.forces.max_drift, 9) if s.forces else None,
                     "within_capacity": s.forces.ok if s.forces else None,
+                    "carries_loads": strength_dicts(s.check)["carries_loads"],
+                    "utilisation": strength_dicts(s.check)["utilisation"],
                 }
             )
     return rows

@@ -25,7 +25,7 @@ from bracegrid.analysis import (
 from bracegrid.compare import Comparison, StrategyKey
 from bracegrid.mechanics import FrameForces
 from bracegrid.model import Member, MemberKind
-from bracegrid.optimize import ProgressEvent, ProjectSolution
+from bracegrid.optimize import ProgressEvent, ProjectSolution, StrengthCheck
 from bracegrid.outputs.shapes import compare_rows, solution_counts
 from bracegrid.outputs.terms import COST, LENGTH, SAVING, STATUS, cents, money_text, saving_text
 from bracegrid.units import metres_text
@@ -214,6 +214,7 @@ def render_optimize(project_name: str, solution: ProjectSolution) -> str:
         lines.append(f"{s.frame.name}: {s.method_text}; {redundancy_words(s.redundancy)}")
         if new:
             lines.append(f"{s.frame.name}: add {_members_text(new, limit=20)}")
+        lines += strength_lines(s.frame.name, s.strength)
         if s.verdict.critical_members:
             lines.append(
                 f"{s.frame.name}: critical (single loss makes it unstable): {len(s.verdict.critical_members)} member(s)"
@@ -221,6 +222,19 @@ def render_optimize(project_name: str, solution: ProjectSolution) -> str:
     lines.append("")
     lines.append(f"Caution: {CAUTION}")
     return "\n".join(lines) + "\n"
+
+
+def strength_lines(name: str, check: StrengthCheck | None) -> list[str]:
+    """Which strength checks a layout passes and, per case, the governing member and its utilisation."""
+    if check is None:
+        return []
+    how = "" if check.searched else " (layout found for stability alone)"
+    out = [f"{name}: {check.words}{how}"]
+    for c in check.cases:
+        p = "none admissible" if c.plastic is None else f"{c.plastic:.2f}"
+        e = "-" if c.elastic is None else f"{c.elastic:.2f}"
+        out.append(f"  {c.title}: plastic {p} ({c.plastic_member}); elastic {e} ({c.elastic_member})")
+    return out
 
 
 def progress_line(event: ProgressEvent) -> str:
@@ -261,13 +275,31 @@ def _force_cells(forces: FrameForces | None) -> tuple[str, str]:
     )
 
 
+def carries_cell(check: StrengthCheck | None) -> str:
+    """Which strength checks a layout passes, as a table cell: both, plastic only, or NO.
+
+    Example:
+        >>> from bracegrid.optimize import CaseCheck
+        >>> carries_cell(StrengthCheck((CaseCheck("w (+)", 0.5, "-", 1.3, "-", False),)))
+        'plastic only'
+    """
+    if check is None:
+        return "-"
+    if check.plastic_ok and check.elastic_ok:
+        return "yes"
+    if check.plastic_ok:
+        return "plastic only"
+    return "NO"
+
+
 def render_compare(comparison: Comparison) -> str:
     """Human-readable comparison tables, one per frame."""
     lines = []
     for fc in comparison.frames:
         table = Table(title=f"Bracing alternatives: {fc.frame.name}", title_justify="left")
         loaded = any(s.forces is not None for s in fc.strategies)
-        extra = ("max util", "max drift") if loaded else ()
+        checked = any(s.check is not None for s in fc.strategies)
+        extra = (("carries loads",) if checked else ()) + (("max util", "max drift") if loaded else ())
         for head in ("strategy", STATUS, "kept braces", "kept ties", "added braces", "added ties", LENGTH, COST,
                      SAVING, "stable", "critical", "survives", *extra, "gap", "time s"):  # fmt: skip
             left = head in {"strategy", STATUS}
@@ -287,6 +319,7 @@ def render_compare(comparison: Comparison) -> str:
                 "yes" if s.stable else "NO",
                 str(s.critical),
                 "-" if s.redundancy < 0 else f"{s.redundancy}",
+                *((carries_cell(s.check),) if checked else ()),
                 *(_force_cells(s.forces) if loaded else ()),
                 "-" if s.gap is None else f"{100 * s.gap:.2f}%",
                 f"{s.seconds:.2f}",
@@ -307,6 +340,11 @@ def render_compare(comparison: Comparison) -> str:
         "saving = rule-of-thumb baseline cost minus the strategy's cost (dearer: the strategy costs more); "
         "survives = member losses survived"
     )
+    if any(s.check is not None for fc in comparison.frames for s in fc.strategies):
+        lines.append(
+            "carries loads: yes = every case within capacity plastically (an admissible force set exists) and "
+            "elastically (tension-only analysis); plastic only = the elastic analysis finds a member or base over"
+        )
     if any(s.forces is not None for fc in comparison.frames for s in fc.strategies):
         lines.append(
             "max util / max drift: the layout under the frame's load cases (! = a member over capacity or a base "

@@ -102,12 +102,14 @@ def execute(spec: JobSpec, send: Send) -> None:
             send(("progress", progress_dict(event)))
 
         if spec.kind is JobKind.OPTIMIZE:
-            sol = optimize_frame(frame, costs, options=spec.options, on_progress=progress)
+            strength = spec.project.strength
+            sol = optimize_frame(frame, costs, options=spec.options, on_progress=progress, strength=strength)
             send(("done", proposal_dict(frame, sol)))
         elif spec.kind is JobKind.REPAIR:
             sol = repair_frame(
-                frame, costs, spec.without, keep_clear=spec.keep_clear, options=spec.options, on_progress=progress
-            )
+                frame, costs, spec.without, keep_clear=spec.keep_clear, options=spec.options, on_progress=progress,
+                strength=spec.project.strength,
+            )  # fmt: skip
             send(("done", proposal_dict(frame, sol)))
         else:
             steps = len(StrategyKey)

@@ -247,21 +247,26 @@ def _options(table: Mapping[str, Any]) -> SolveOptions:
             msg = f"expected a non-empty list of {', '.join(repr(k) for k in kinds)}, got {_show(raw)}"
             raise RequestError(msg, field="allow")
         allow = frozenset(kinds[k] for k in raw)
+    alone = table.get("stability_only", False)
+    if not isinstance(alone, bool):
+        msg = f"expected true or false, got {_show(alone)}"
+        raise RequestError(msg, field="stability_only")
     return SolveOptions(
         time_limit=limit,
         workers=_integer("workers", table.get("workers", MAX_WORKERS), 1, MAX_WORKERS),
         seed=_integer("seed", table.get("seed", 0), 0, MAX_SEED),
         allow=allow,
+        stability_only=alone,
     )
 
 
-_SOLVER_FIELDS = {"time_limit", "workers", "seed"}
+_SOLVER_FIELDS = {"time_limit", "workers", "seed", "stability_only"}
 
 
 def job_request(data: Mapping[str, Any], *, repair: bool = False, allow: bool = True) -> JobRequest:
     """Read an optimize, repair or compare request.
 
-    Optimize: ``{"frame", "time_limit"?, "workers"?, "seed"?, "allow"?}``; repair adds
+    Optimize: ``{"frame", "time_limit"?, "workers"?, "seed"?, "stability_only"?, "allow"?}``; repair adds
     ``"without": [{"row", "col", "diagonal"}]`` and ``"keep_clear"?``; compare takes no ``allow``.
     """
     optional = _SOLVER_FIELDS | ({"allow"} if allow else set()) | ({"keep_clear"} if repair else set())

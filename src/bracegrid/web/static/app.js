@@ -813,7 +813,7 @@
   function solverOptions() {
     const limit = Number($("time-limit").value) || 20;
     const seed = Math.max(0, Math.floor(Number($("seed").value) || 0));
-    return { time_limit: Math.max(1, Math.min(600, limit)), seed };
+    return { time_limit: Math.max(1, Math.min(600, limit)), seed, stability_only: $("stability-only").checked };
   }
 
   function updateRepairButton() {
@@ -897,7 +897,7 @@
     $("proposal-text").textContent =
       `${job.kind === "repair" ? "Repair" : "Optimizer"}: ${outs ? `take out ${outs}, ` : ""}add ${adds} member${adds === 1 ? "" : "s"} ` +
       `(${s.new_braces} braces, ${s.new_ties} ties) for ${money(s.added_cost)}; whole layout ${money(s.cost)}, ${status}, ` +
-      `by ${s.method}. Shown dashed in green until accepted.`;
+      `by ${s.method}.${s.strength ? ` Loads: ${s.strength.words}.` : ""} Shown dashed in green until accepted.`;
     $("proposal-card").hidden = false;
     renderOffers();
   }
