@@ -640,7 +640,7 @@ def build_parser() -> argparse.ArgumentParser:
     cmp_ = sub.add_parser(
         "compare",
         help="cost braces-only, ties-only, mixed, mixed N-1 and a rule-of-thumb layout side by side",
-        description="Solve every frame under five strategies and write a comparison table (CSV), one DXF per "
+        description="Solve every frame under six strategies and write a comparison table (CSV), one DXF per "
         "strategy and a self-contained report.html. Members in place are kept; proposed ones are dropped.",
     )
     _add_common(cmp_)
