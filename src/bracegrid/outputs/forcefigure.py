@@ -81,20 +81,27 @@ def force_svg(frame: Frame, case: CaseForces, *, title: str) -> str:
     label_room = min(*frame.widths, *frame.heights) * s >= _LABEL_BAY_PX
     few = len(case.members) <= _LABEL_ALL_BARS
     labels = []
+    # Bars of one colour share one path (and slack ties one dashed path): a 12 x 8 face has about 240
+    # bars, and one element each made the report's figures several times larger than they need be.
+    # Bars over capacity stay one path each, drawn last, on top.
+    by_colour: dict[str, list[str]] = {}
+    slack: list[str] = []
+    over_paths: list[str] = []
     for m in case.members:
         (ax, ay), (bx, by) = (px(*p) for p in bar_ends(frame, m))
+        segment = f"M{n(ax)},{n(ay)}L{n(bx)},{n(by)}"
         if m.slack:
-            out.append(f'<path d="M{n(ax)},{n(ay)}L{n(bx)},{n(by)}" stroke="#9aa0a6" stroke-dasharray="5 3"/>')
+            slack.append(segment)
             continue
         if rated:
             rgb = UNRATED_RGB if m.utilisation is None else utilisation_rgb(m.utilisation)
         else:
             rgb = utilisation_rgb(abs(m.force_kn) / largest) if largest > 0 else UNRATED_RGB
         heavy = m.over
-        out.append(
-            f'<path d="M{n(ax)},{n(ay)}L{n(bx)},{n(by)}" stroke="{hex_colour(rgb)}" '
-            f'stroke-width="{4 if heavy else 2.2}"/>'
-        )
+        if heavy:
+            over_paths.append(f'<path d="{segment}" stroke="{hex_colour(rgb)}" stroke-width="4"/>')
+        else:
+            by_colour.setdefault(hex_colour(rgb), []).append(segment)
         diagonal = m.kind in {BarKind.BRACE, BarKind.TIE}
         if label_room and (few or diagonal or heavy):
             cx, cy = (ax + bx) / 2, (ay + by) / 2
@@ -109,6 +116,12 @@ def force_svg(frame: Frame, case: CaseForces, *, title: str) -> str:
                 f'<text x="{n(cx)}" y="{n(cy - 3)}" text-anchor="middle" transform="{turn}" fill="{colour}">'
                 f"{_kn(m.force_kn)}</text>"
             )
+    if slack:
+        out.append(f'<path d="{"".join(slack)}" stroke="#9aa0a6" stroke-dasharray="5 3" fill="none"/>')
+    if by_colour:
+        paths = "".join(f'<path d="{"".join(d)}" stroke="{c}"/>' for c, d in by_colour.items())
+        out.append(f'<g stroke-width="2.2" fill="none">{paths}</g>')
+    out.extend(over_paths)
     if labels:
         out.append(f'<g paint-order="stroke" stroke="#fff" stroke-width="3">{"".join(labels)}</g>')
     if frame.supports is Supports.BASE:

@@ -145,7 +145,7 @@ def render_robustness_plot(panels: Sequence[PlotPanel], fmt: PlotFormat, *, dpi:
     )
     fig.supxlabel(note, fontsize=6.5, x=0.01, ha="left", color="#444444", wrap=True)
     buffer = io.BytesIO()
-    with matplotlib.rc_context({"svg.hashsalt": "bracegrid-robustness", "svg.fonttype": "path"}):
+    with matplotlib.rc_context({"svg.hashsalt": "bracegrid-robustness", "svg.fonttype": "none"}):
         metadata = {"Date": None} if fmt is PlotFormat.SVG else {"Software": None}
         fig.savefig(buffer, format=fmt.value, dpi=dpi, facecolor="white", metadata=metadata)
     return buffer.getvalue()
