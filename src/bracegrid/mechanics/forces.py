@@ -274,7 +274,10 @@ def _general_mechanism(model: LayoutModel) -> Mechanism:
         why = (
             "no member resists that motion, whatever the load: add a brace, or a tie in each sense, in a bay that moves"
         )
-    words = (found, f"{why}; member forces are reported only for a first-order rigid layout (docs/general-frames.md)")
+    words = (
+        f"{found}.",
+        f"{why}; member forces are reported only for a first-order rigid layout (docs/general-frames.md).",
+    )
     return Mechanism(kind=kind, rows=(), columns=(), slides=(), words=words)
 
 
