@@ -444,8 +444,8 @@ def _draw_panel(
             return ink.model(xs[q] + factor * u[2 * n], ys[p] + factor * u[2 * n + 1])
 
         for bar in present_grid_bars(frame):
-            a, b = bar.ends()
-            ink.line(moved(*a), moved(*b), ForceLayer.DEFLECTED)
+            start, end = bar.ends()
+            ink.line(moved(*start), moved(*end), ForceLayer.DEFLECTED)
     # members, coloured; labels where they fit
     small = 0.005 * largest
     for m in case.members:
