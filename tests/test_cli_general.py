@@ -6,6 +6,8 @@ import io
 import json
 from pathlib import Path
 
+import pytest
+
 from bracegrid.cli import main
 from bracegrid.io import load_project
 from bracegrid.mechanics import check_any
@@ -78,8 +80,31 @@ def test_drawing_shows_omitted_bars_absent_bays_and_the_flex() -> None:
     by_layer: dict[str, list[str]] = {}
     for e in doc.modelspace():
         by_layer.setdefault(e.dxf.layer, []).append(e.dxftype())
-    assert by_layer[Layer.FRAME_OMIT.layer_name] == ["LINE"]  # one ledger left out
+    assert by_layer[Layer.FRAME_OMIT.layer_name] == ["LINE", "LINE"]  # one ledger left out on each wall line
     assert by_layer[Layer.ABSENT.layer_name].count("HATCH") == 6  # office block and stair void
     assert by_layer[Layer.FLEX.layer_name]  # the unstable wall line's deflected shape
     texts = " ".join(e.plain_text() for e in doc.modelspace().query("MTEXT TEXT") if hasattr(e, "plain_text"))
     assert "grid bar left out" in texts
+
+
+def test_forces_on_general_frames_mechanism_and_solved(tmp_path: Path) -> None:
+    code, out, _ = run("forces", DEPOT, "--json", "--out", str(tmp_path))
+    frames = {f["name"]: f for f in json.loads(out)["frames"]}
+    assert "depot roof" not in frames  # no load cases there
+    wall, repaired = frames["loading bay wall"], frames["loading bay wall, repaired"]
+    assert all(c["mechanism"] and c["members"] == [] for c in wall["cases"])  # never numbers
+    assert wall["cases"][0]["mechanism_description"][0].startswith("the exact check finds a mechanism")
+    case = repaired["cases"][0]
+    assert not case["mechanism"]
+    bars = {(m["kind"], m.get("line"), m.get("row"), m.get("col")) for m in case["members"]}
+    assert not any(kind == "ledger" and line == 1 and col == 3 for kind, line, _, col in bars)  # left out
+    # 15 kN of wind on the first lift (6 + 6 + 3) is carried by the two rising braces of lift 1 (4 x 3 m bays:
+    # horizontal share 0.8 of the force)
+    braces = [m for m in case["members"] if m["kind"] == "brace" and m["row"] == 1]
+    assert sum(0.8 * m["force_kn"] for m in braces) == pytest.approx(15.0, abs=1e-9)
+    assert code == 1  # one case set is a mechanism
+    assert (tmp_path / "harrow-depot-forces-loading-bay-wall-repaired.png").stat().st_size > 0
+    code, out, _ = run("check", DEPOT, "--json")
+    summaries = {f["name"]: f.get("forces") for f in json.loads(out)["frames"]}
+    assert summaries["loading bay wall"]["mechanism_cases"]
+    assert summaries["loading bay wall, repaired"]["ok"] is True

@@ -194,7 +194,7 @@ def _cmd_check(args: argparse.Namespace, out: TextIO) -> int:
     forces = {
         f.name: analyse_frame(f, project.strength, members=remove_members(f, taken if f is target else ()))
         for f in chosen
-        if f.loads and f.is_complete  # general frames: stability only (docs/general-frames.md)
+        if f.loads
     }
     additions: dict[str, AdditionAdvice] = {
         f.name: rank_additions(f, project.costs, members=remove_members(f, taken) if f is target else None)

@@ -323,7 +323,7 @@ def _with_forces(result: StrategyResult, strength: StrengthCatalogue | None, *, 
     The baseline's note then says whether it carries the loads, and by how much it fails.
     """
     layout = result.frame
-    if strength is None or layout is None or not layout.loads or not layout.is_complete:
+    if strength is None or layout is None or not layout.loads:
         return result
     alone = result.key in (StrategyKey.STABLE_ONLY, StrategyKey.BASELINE)
     check = strength_check(layout, strength, layout.members, searched=searched and not alone)

@@ -175,7 +175,20 @@ def check_any(frame: Frame, members: Sequence[Member], *, removed: tuple[Member,
     layout = tuple(members)
     if frame.is_complete:
         return check_layout(frame, layout, removed=removed)
-    result = exact_rigidity(frame, layout)
+    return exact_verdict(frame, layout, exact_rigidity(frame, layout), removed=removed)
+
+
+def exact_verdict(
+    frame: Frame,
+    members: Sequence[Member],
+    result: Rigidity,
+    *,
+    removed: tuple[Member, ...] = (),
+    critical: bool = True,
+) -> Verdict:
+    """The verdict of a general frame's layout from its exact check (``critical=False`` skips the
+    critical members, which cost one exact check each)."""
+    layout = tuple(members)
     braces = sum(m.kind is MemberKind.BRACE for m in layout)
     return Verdict(
         frame=frame.name,
@@ -184,7 +197,7 @@ def check_any(frame: Frame, members: Sequence[Member], *, removed: tuple[Member,
         loose_parts=(),
         anchor_rows=(),
         anchor_columns=(),
-        critical_members=general_critical(frame, layout) if result.rigid else (),
+        critical_members=general_critical(frame, layout) if result.rigid and critical else (),
         braces=braces,
         ties=len(layout) - braces,
         maxwell_needed=_needed(frame),

@@ -12,19 +12,35 @@ every load case (in each sense it acts) is either
 Whole-frame motions the supports leave free and the load does not drive (a plan grid held only on
 its two side edges, loaded along them) are pinned at datum degrees of freedom; their reactions are
 part of the residual check, so a datum never carries load.
+
+General frames (missing grid bars, absent bays; docs/general-frames.md) are decided by the exact
+first-order rigidity check (:func:`bracegrid.mechanics.rigidity.exact_rigidity`) instead of the
+complete-grid free motions: a layout that is not rigid gives every case as a mechanism in the
+exact check's words; a rigid one is solved as above, on the bars and nodes the frame has, with the
+rigid-body motions its supports leave (exact, from the reduced framework) as its whole-frame motions.
 """
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 import scipy.linalg
 
-from bracegrid.analysis import Verdict, anchor_words, check_layout, describe_part, format_numbers
+from bracegrid.analysis import Verdict, anchor_words, check_layout, describe_part, flex_words, format_numbers
 from bracegrid.errors import InputError, NumericalError
-from bracegrid.mechanics.framework import BAR_KINDS, BarFramework, BarKind, BoolArray, FloatArray, build_framework
+from bracegrid.mechanics.checking import exact_verdict, flex_of
+from bracegrid.mechanics.framework import (
+    BAR_KINDS,
+    BarFramework,
+    BarKind,
+    BoolArray,
+    FloatArray,
+    build_framework,
+    node_index,
+)
 from bracegrid.mechanics.loading import nodal_loads
 from bracegrid.mechanics.motions import (
     DRIVEN_REL,
@@ -46,6 +62,7 @@ from bracegrid.mechanics.results import (
     MemberForce,
     Reaction,
 )
+from bracegrid.mechanics.rigidity import Rigidity, exact_rigidity, rank_target
 from bracegrid.mechanics.stiffness import (
     DofMap,
     FactorCache,
@@ -66,17 +83,22 @@ class LayoutModel:
         framework: The bar framework.
         strength: Capacities and stiffness.
         verdict: The stability check of the layout (for the words of a mechanism).
-        free: Motions no member resists in either sense.
-        dof_map: Free degrees of freedom (supports and datums removed).
+        free: Motions no member resists in either sense (complete grids; None on general frames).
+        dof_map: Free degrees of freedom (supports, datums and inactive nodes removed).
         datums: Degrees of freedom fixed only to pin undriven whole-frame motions.
+        exact: The exact rigidity check (general frames; None on complete grids).
+        whole: Node motions (rows, every degree of freedom) of the rigid-body motions the supports
+            leave a rigid general frame (empty on complete grids and non-rigid layouts).
     """
 
     framework: BarFramework
     strength: StrengthCatalogue
     verdict: Verdict
-    free: FreeMotions
+    free: FreeMotions | None
     dof_map: DofMap
     datums: tuple[int, ...]
+    exact: Rigidity | None = None
+    whole: FloatArray | None = None
 
     @property
     def frame(self) -> Frame:
@@ -84,14 +106,43 @@ class LayoutModel:
         return self.framework.frame
 
 
-def _datum_dofs(frame: Frame, free: FreeMotions, fixed: BoolArray) -> tuple[int, ...]:
-    """Degrees of freedom that pin the whole-frame motions: one per motion, well conditioned."""
-    if free.count == 0 or free.internal:
+def _datum_dofs(motions: FloatArray, fixed: BoolArray) -> tuple[int, ...]:
+    """Degrees of freedom that pin the whole-frame motions (rows of node motions): one per motion, well conditioned."""
+    if motions.shape[0] == 0:
         return ()
-    motions = np.array([node_motion(frame, z) for z in free.basis])  # (k, dofs)
     candidates = np.flatnonzero(~fixed)
     _, _, pivots = scipy.linalg.qr(motions[:, candidates], pivoting=True, mode="economic")
-    return tuple(sorted(int(candidates[p]) for p in pivots[: free.count]))
+    return tuple(sorted(int(candidates[p]) for p in pivots[: motions.shape[0]]))
+
+
+def _whole_motions(fw: BarFramework, exact: Rigidity) -> FloatArray:
+    """The rigid-body motions the supports leave a general frame, as node motions (k, dofs), exact integers."""
+    red = exact.reduced
+    _, free, motions = rank_target(red)
+    out = np.zeros((motions.shape[1], fw.dofs))
+    for k in range(motions.shape[1]):
+        z = np.zeros(red.classes)
+        z[free] = motions[:, k]
+        big = float(np.abs(z).max()) or 1.0
+        for n, (p, q) in enumerate(red.nodes):
+            node = node_index(fw.frame, p, q)
+            out[k, 2 * node] = z[red.xclass[n]] / big
+            out[k, 2 * node + 1] = z[red.yclass[n]] / big
+    return out
+
+
+def _prepare_general(frame: Frame, strength: StrengthCatalogue, layout: tuple[Member, ...]) -> LayoutModel:
+    fw = build_framework(frame, strength, members=layout)
+    exact = exact_rigidity(frame, layout)
+    whole = _whole_motions(fw, exact) if exact.rigid else np.zeros((0, fw.dofs))
+    fixed = fw.fixed_mask() | fw.inactive_mask()
+    datums = _datum_dofs(whole, fixed)
+    mask = fixed.copy()
+    mask[list(datums)] = True
+    return LayoutModel(
+        framework=fw, strength=strength, verdict=exact_verdict(frame, layout, exact, critical=False), free=None,
+        dof_map=DofMap.of(fw.dofs, mask), datums=datums, exact=exact, whole=whole,
+    )  # fmt: skip
 
 
 def prepare_layout(frame: Frame, strength: StrengthCatalogue, members: Sequence[Member] | None = None) -> LayoutModel:
@@ -100,17 +151,16 @@ def prepare_layout(frame: Frame, strength: StrengthCatalogue, members: Sequence[
     Raises:
         InputError: If a stiffness the layout needs is missing.
     """
-    if not frame.is_complete:
-        msg = (
-            f"frame {frame.name!r}: member forces of a frame with missing grid bars or absent bays are not "
-            "built yet (docs/general-frames.md); its stability is checked exactly by bracegrid check"
-        )
-        raise InputError(msg)
     layout = tuple(frame.members if members is None else members)
+    if not frame.is_complete:
+        return _prepare_general(frame, strength, layout)
     fw = build_framework(frame, strength, members=layout)
     free = free_motions(frame, layout)
     fixed = fw.fixed_mask()
-    datums = _datum_dofs(frame, free, fixed)
+    datums = (
+        () if free.count == 0 or free.internal
+        else _datum_dofs(np.array([node_motion(frame, z) for z in free.basis]), fixed)
+    )  # fmt: skip
     mask = fixed.copy()
     mask[list(datums)] = True
     return LayoutModel(
@@ -150,10 +200,10 @@ def _verdict_words(verdict: Verdict, only_both: bool = False) -> list[str]:
     ]
 
 
-def _free_part(model: LayoutModel) -> Mechanism:
+def _free_part(model: LayoutModel, free: FreeMotions) -> Mechanism:
     frame = model.frame
     moving = np.zeros(frame.rows + frame.cols + 2, dtype=bool)
-    for z in model.free.basis:
+    for z in free.basis:
         moving |= np.abs(z) > 0
     rows = tuple(i for i in range(1, frame.rows + 1) if moving[z_of_row(i)])
     cols = tuple(j for j in range(1, frame.cols + 1) if moving[z_of_col(frame, j)])
@@ -205,6 +255,45 @@ def _driven(model: LayoutModel, z: FloatArray | None, title: str) -> Mechanism:
     ]
     words += _verdict_words(model.verdict)
     return Mechanism(MechanismKind.DRIVEN, tuple(rows), tuple(cols), tuple(slides), tuple(words))
+
+
+def _general_mechanism(model: LayoutModel) -> Mechanism:
+    """Every case of a general layout the exact check finds not first-order rigid."""
+    exact = model.exact
+    flex = flex_of(model.frame, exact) if exact is not None else None
+    found = f"the exact check finds a {flex_words(flex)}" if flex is not None else "the exact check finds a mechanism"
+    if exact is not None and exact.bar_rigid:
+        kind = MechanismKind.DRIVEN
+        why = (
+            "with every member as a bar the frame would be rigid, but its ties cannot all be taut together "
+            "(no proper self-stress): a load in the sense the slack ties should resist moves it. Add braces, "
+            "or ties in the other sense"
+        )
+    else:
+        kind = MechanismKind.FREE_PART
+        why = (
+            "no member resists that motion, whatever the load: add a brace, or a tie in each sense, in a bay that moves"
+        )
+    words = (
+        f"{found}.",
+        f"{why}; member forces are reported only for a first-order rigid layout (docs/general-frames.md).",
+    )
+    return Mechanism(kind=kind, rows=(), columns=(), slides=(), words=words)
+
+
+def _whole_driven(model: LayoutModel, motion: FloatArray, title: str) -> Mechanism:
+    """A load that moves a rigid general frame as one body its supports leave free."""
+    active = model.framework.active
+    u = motion.reshape(-1, 2)[active]
+    tol = 1e-9 * (float(np.abs(u).max()) or 1.0)  # exact integer motions, scaled to 1: zero is zero
+    turning = float(np.ptp(u[:, 0])) > tol or float(np.ptp(u[:, 1])) > tol
+    slides = () if turning else tuple(a for a, k in (("x", 0), ("y", 1)) if abs(float(u[0, k])) > tol)
+    what = "it turns" if turning else "it slides along " + " and ".join(slides)
+    words = (
+        f"under {title} the load moves the whole frame as one rigid body its supports leave free ({what}); "
+        "add supports (a held edge or a pinned base) that stop that motion",
+    )
+    return Mechanism(MechanismKind.DRIVEN, (), (), slides, words)
 
 
 # --------------------------------------------------------------------------- one case
@@ -282,18 +371,22 @@ class _Solver:
         fw = self.model.framework
         # Taut members alone hold the frame iff they leave no more free motions than all members do.
         held = [m for m, t in zip(fw.members, taut[fw.first_diagonal :], strict=True) if t]
-        alone = free_motions(fw.frame, held).count == self.model.free.count
+        if self.model.free is not None:
+            alone = free_motions(fw.frame, held).count == self.model.free.count
+        else:  # general frame (rigid): the taut members alone, as bars, must hold it
+            bars = [dataclasses.replace(m, kind=MemberKind.BRACE) for m in held]
+            alone = exact_rigidity(fw.frame, bars).rigid
         weights = self.stiffness * np.where(taut, 1.0, 0.0 if alone else SLACK_STIFFNESS)
         return self.cache.put(key, assemble_stiffness(fw, self.model.dof_map, weights))
 
-    def solve(self, case: LoadCase, sense: LoadSense) -> CaseForces:
+    def _complete_mechanism(self, loads: FloatArray, title: str) -> Mechanism | None:
+        """The mechanism a complete grid's case meets (None when it can be solved)."""
         model = self.model
         frame, fw = model.frame, model.framework
-        title = f"{case.name} ({sense.value})"
-        loads = nodal_loads(frame, case, sense)
-        total = float(np.abs(loads).sum())
+        if model.free is None:  # pragma: no cover - complete grids always have their free motions
+            return None
         if model.free.internal:
-            return _mechanism_case(case, sense, _free_part(model), total)
+            return _free_part(model, model.free)
         work = work_coefficients(frame, loads)
         # A stable layout leaves only whole-frame motions the supports allow (both senses): the load
         # drives one iff it does work on it. Otherwise the cone of motions needs the programme.
@@ -305,8 +398,27 @@ class _Solver:
                 break
         if z is None and not model.verdict.stable:
             z = driven_motion(frame, fw.members, work)
-        if z is not None:
-            return _mechanism_case(case, sense, _driven(model, z, title), total)
+        return _driven(model, z, title) if z is not None else None
+
+    def solve(self, case: LoadCase, sense: LoadSense) -> CaseForces:
+        model = self.model
+        frame, fw = model.frame, model.framework
+        title = f"{case.name} ({sense.value})"
+        loads = nodal_loads(frame, case, sense)
+        total = float(np.abs(loads).sum())
+        if model.free is None:  # general frame: the exact check decides
+            if model.exact is None or not model.exact.rigid:
+                return _mechanism_case(case, sense, _general_mechanism(model), total)
+            # A rigid layout leaves only rigid-body motions the supports allow (both senses): the
+            # load drives one iff it does work on it (the same threshold as on complete grids).
+            for motion in model.whole if model.whole is not None else ():
+                done = float(loads @ motion)
+                if abs(done) > DRIVEN_REL * float(np.abs(loads).sum() * np.abs(motion).max()):
+                    return _mechanism_case(case, sense, _whole_driven(model, motion, title), total)
+        else:
+            mechanism = self._complete_mechanism(loads, title)
+            if mechanism is not None:
+                return _mechanism_case(case, sense, mechanism, total)
         reduced = loads[model.dof_map.free]
         eq = solve_tension_only(self.compat, self.stiffness, fw.tension_only, reduced, self.newton_matrix)
         if not eq.bounded:
@@ -325,8 +437,9 @@ class _Solver:
         u = np.zeros(fw.dofs)
         u[model.dof_map.free] = eq.displacement
         grid = u.reshape(frame.rows + 1, frame.cols + 1, 2)
-        sway = grid[:, :, 0].mean(axis=1)
-        sway_y = grid[:, :, 1].mean(axis=0)
+        on = fw.active.reshape(frame.rows + 1, frame.cols + 1)  # mean over the nodes the frame has
+        sway = (grid[:, :, 0] * on).sum(axis=1) / np.maximum(on.sum(axis=1), 1)
+        sway_y = (grid[:, :, 1] * on).sum(axis=0) / np.maximum(on.sum(axis=0), 1)
         drift = np.diff(sway) / np.array(frame.heights, dtype=np.float64)
         return CaseForces(
             case=case.name,

@@ -4,12 +4,18 @@ Node ``(p, q)`` sits where horizontal grid line p (0..R, bottom up) meets vertic
 (0..C, left to right); its index is ``p * (C + 1) + q`` and its degrees of freedom are
 ``2 * index`` (x) and ``2 * index + 1`` (y). Coordinates stay whole millimetres. Bars are stored
 in a fixed order: the ledgers (line p = 0..R, column j = 1..C), the standards (line q = 0..C,
-row i = 1..R), then the diagonals in the order of the layout's members. Grid bars the caller
-leaves out (``omitted``) are simply absent; the stiffness check of such frames belongs to the
-general rigidity check, not to the row/column digraph.
+row i = 1..R), then the diagonals in the order of the layout's members. Grid bars a general frame
+does not have (missing, or outside its outline: :func:`bracegrid.model.present_grid_bars`) and
+those the caller leaves out (``omitted``) are simply absent; whether such a framework can carry
+load is decided by the exact rigidity check (:mod:`bracegrid.mechanics.rigidity`), not by the
+row/column digraph.
 
-Supports are fixed degrees of freedom: a pinned base fixes both at every node of line 0; a held
-edge (plan grids) fixes each node of that edge along the edge's own direction.
+The node index keeps the full rectangle, so node ``(p, q)`` has the same index on every frame; a
+node no present bar reaches (inside an absent region) is marked inactive (``active``): it carries
+no support, no load and no unknown of the solve.
+
+Supports are fixed degrees of freedom: a pinned base fixes both at every active node of line 0; a
+held edge (plan grids) fixes each active node of that edge along the edge's own direction.
 """
 
 from __future__ import annotations
@@ -22,7 +28,17 @@ import numpy as np
 import numpy.typing as npt
 
 from bracegrid.errors import InputError
-from bracegrid.model import Diagonal, Edge, Frame, Member, MemberKind, StrengthCatalogue, Supports
+from bracegrid.model import (
+    Diagonal,
+    Edge,
+    Frame,
+    GridBarKind,
+    Member,
+    MemberKind,
+    StrengthCatalogue,
+    Supports,
+    present_grid_bars,
+)
 
 FloatArray = npt.NDArray[np.float64]
 IntArray = npt.NDArray[np.int64]
@@ -102,6 +118,7 @@ class BarFramework:
         tension_only: True for ties.
         supports: Every fixed degree of freedom, in node order.
         first_diagonal: Index of the first diagonal bar.
+        active: True for every node some bar reaches (all nodes of a complete grid).
     """
 
     frame: Frame
@@ -117,6 +134,7 @@ class BarFramework:
     tension_only: BoolArray
     supports: tuple[SupportDof, ...]
     first_diagonal: int
+    active: BoolArray
 
     @property
     def nodes(self) -> int:
@@ -144,6 +162,11 @@ class BarFramework:
         mask = np.zeros(self.dofs, dtype=bool)
         mask[[s.dof for s in self.supports]] = True
         return mask
+
+    def inactive_mask(self) -> BoolArray:
+        """True at both degrees of freedom of every node no bar reaches (not part of the solve)."""
+        out: BoolArray = np.repeat(~self.active, 2)
+        return out
 
     def bar_kind(self, k: int) -> BarKind:
         """Kind of bar k."""
@@ -182,8 +205,11 @@ def diagonal_ends(frame: Frame, row: int, col: int, diagonal: Diagonal) -> tuple
     return node_index(frame, row, col - 1), node_index(frame, row - 1, col)
 
 
-def support_dofs(frame: Frame) -> tuple[SupportDof, ...]:
+def support_dofs(frame: Frame, active: BoolArray | None = None) -> tuple[SupportDof, ...]:
     """The degrees of freedom the frame's supports fix (a pinned base, or its held edges).
+
+    Only nodes flagged in ``active`` (default: every node) are held: a node of an absent region
+    does not exist, so nothing supports it.
 
     Example:
         >>> from bracegrid.model import Supports
@@ -209,6 +235,8 @@ def support_dofs(frame: Frame) -> tuple[SupportDof, ...]:
         for p, q in points:
             dof = 2 * node_index(frame, p, q) + axis
             found.setdefault(dof, SupportDof(edge.value, p, q, dof))
+    if active is not None:
+        found = {d: s for d, s in found.items() if active[d // 2]}
     return tuple(found[d] for d in sorted(found))
 
 
@@ -241,7 +269,7 @@ def build_framework(
         frame: Sizes, supports and held edges.
         strength: Gives the axial stiffness of grid bars and of each member kind.
         members: The diagonals (default: the frame's own).
-        omitted: Grid bar segments to leave out.
+        omitted: Grid bar segments to leave out, besides those the frame does not have.
 
     Returns:
         The framework.
@@ -266,9 +294,19 @@ def build_framework(
             "add it to the project file: forces in an indeterminate layout depend on it"
         )
         raise InputError(msg)
-    gone = {(g.kind, g.line, g.span) for g in omitted}
-    xs, ys = frame.x_lines(), frame.y_lines()
     r_count, c_count = frame.rows, frame.cols
+    gone = {(g.kind, g.line, g.span) for g in omitted}
+    if not frame.is_complete:
+        have = {(BarKind.LEDGER if b.kind is GridBarKind.LEDGER else BarKind.STANDARD, b.line, b.span)
+                for b in present_grid_bars(frame)}  # fmt: skip
+        gone |= {
+            (kind, line, span)
+            for kind, lines, spans in ((BarKind.LEDGER, r_count + 1, c_count), (BarKind.STANDARD, c_count + 1, r_count))
+            for line in range(lines)
+            for span in range(1, spans + 1)
+            if (kind, line, span) not in have
+        }
+    xs, ys = frame.x_lines(), frame.y_lines()
     coords = np.array([[xs[q], ys[p]] for p in range(r_count + 1) for q in range(c_count + 1)], dtype=np.int64)
     ends: list[tuple[int, int]] = []
     kinds: list[int] = []
@@ -306,6 +344,8 @@ def build_framework(
     delta = coords[end_arr[:, 1]] - coords[end_arr[:, 0]]
     length = np.hypot(delta[:, 0].astype(np.float64), delta[:, 1].astype(np.float64))
     kind_arr = np.array(kinds, dtype=np.int64)
+    active = np.zeros(len(coords), dtype=bool)
+    active[end_arr.ravel()] = True
     return BarFramework(
         frame=frame,
         members=layout,
@@ -318,6 +358,7 @@ def build_framework(
         ea_kn=_readonly(np.array(ea, dtype=np.float64)),  # type: ignore[arg-type]
         length_mm=_readonly(length),  # type: ignore[arg-type]
         tension_only=_readonly(kind_arr == BAR_KINDS.index(BarKind.TIE)),  # type: ignore[arg-type]
-        supports=support_dofs(frame),
+        supports=support_dofs(frame, active),
         first_diagonal=first_diagonal,
+        active=_readonly(active),  # type: ignore[arg-type]
     )

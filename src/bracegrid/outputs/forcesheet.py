@@ -22,7 +22,7 @@ from typing import TYPE_CHECKING, Any
 from bracegrid._version import __version__
 from bracegrid.analysis import CAUTION
 from bracegrid.mechanics import MODEL_LIMITS, BarKind, CaseForces, FrameForces, MemberForce, Reaction
-from bracegrid.model import Diagonal, Frame, Project, Supports
+from bracegrid.model import Diagonal, Frame, Project, Supports, present_grid_bars, present_nodes
 from bracegrid.outputs.forcetext import drift_text, util_text
 from bracegrid.outputs.layers import Field, Layer, LayerSpec
 from bracegrid.outputs.ramp import OVER_RGB, UNRATED_RGB, utilisation_rgb
@@ -261,7 +261,12 @@ def _panel_box(frame: Frame, heading: float) -> FrameBox:
 
 def _headings(case: CaseForces, factor: float) -> tuple[str, str, str]:
     if case.is_mechanism:
-        return (case.title, "MECHANISM: no forces (see notes)", "the shaded part moves")
+        shaded = case.mechanism is not None and bool(case.mechanism.rows or case.mechanism.columns)
+        return (
+            case.title,
+            "MECHANISM: no forces (see notes)",
+            "the shaded part moves" if shaded else "what moves: see notes",
+        )
     g = case.governing
     if g is not None and g.utilisation is not None:
         mark = "  OVER CAPACITY" if case.over_capacity or case.uplift_over else ""
@@ -363,8 +368,10 @@ def _draw_supports(pen: Pen, ink: _Ink, frame: Frame) -> None:
         ink.msp.add_line(
             ink.model(-3.0 * s, 0), ink.model(w + 3.0 * s, 0), dxfattribs={"layer": Layer.SUPPORT.layer_name}
         )
-        for x in xs:
-            pen.block(SUPPORT_BLOCK, x / s, 0.0, Layer.SUPPORT_SYMBOL)
+        nodes = present_nodes(frame)
+        for q, x in enumerate(xs):
+            if (0, q) in nodes:  # a general frame is supported only where it has a node
+                pen.block(SUPPORT_BLOCK, x / s, 0.0, Layer.SUPPORT_SYMBOL)
     for edge in frame.held_edges:
         # a wall line under the edge: a heavy line just outside it, with short ticks
         off = 1.5 * s
@@ -416,11 +423,18 @@ def _draw_panel(
                 ForceLayer.MECHANISM,
                 (255, 226, 190),
             )
-        for x in xs:
-            msp.add_line(ink.model(x, 0), ink.model(x, h), dxfattribs={"layer": Layer.FRAME.layer_name})
-        for y in ys:
-            msp.add_line(ink.model(0, y), ink.model(w, y), dxfattribs={"layer": Layer.FRAME.layer_name})
-    # deflected shape under the members, so the members stay readable
+        if frame.is_complete:
+            for x in xs:
+                msp.add_line(ink.model(x, 0), ink.model(x, h), dxfattribs={"layer": Layer.FRAME.layer_name})
+            for y in ys:
+                msp.add_line(ink.model(0, y), ink.model(w, y), dxfattribs={"layer": Layer.FRAME.layer_name})
+        else:  # only the grid bars the frame has
+            for bar in present_grid_bars(frame):
+                (p0, q0), (p1, q1) = bar.ends()
+                msp.add_line(
+                    ink.model(xs[q0], ys[p0]), ink.model(xs[q1], ys[p1]), dxfattribs={"layer": Layer.FRAME.layer_name}
+                )
+    # deflected shape under the members, so the members stay readable (the grid bars the frame has)
     if case.node_displacement_mm:
         u = case.node_displacement_mm
         cols = frame.cols + 1
@@ -429,12 +443,9 @@ def _draw_panel(
             n = p * cols + q
             return ink.model(xs[q] + factor * u[2 * n], ys[p] + factor * u[2 * n + 1])
 
-        for p in range(frame.rows + 1):
-            for q in range(frame.cols):
-                ink.line(moved(p, q), moved(p, q + 1), ForceLayer.DEFLECTED)
-        for q in range(frame.cols + 1):
-            for p in range(frame.rows):
-                ink.line(moved(p, q), moved(p + 1, q), ForceLayer.DEFLECTED)
+        for bar in present_grid_bars(frame):
+            start, end = bar.ends()
+            ink.line(moved(*start), moved(*end), ForceLayer.DEFLECTED)
     # members, coloured; labels where they fit
     small = 0.005 * largest
     for m in case.members:
