@@ -50,6 +50,7 @@ from bracegrid.optimize.capacity import (
     CapacityCut,
     PlasticFrame,
     arc_capacity,
+    carries,
     cover_cut,
     cut_from,
     farkas_cut,
@@ -335,6 +336,8 @@ def strength_reasons(pf: PlasticFrame, table: BayTable) -> list[str]:
     if out:
         return out
     for load in pf.loads:
+        if carries(pf, load, everything):
+            continue  # the phase-one LP decides, as in the loop; the utilisation LP (15x slower) gives words
         u = min_utilisation(pf, load, everything)
         if not u.carried:
             if u.value is None:
