@@ -37,6 +37,10 @@ def test_check_names_the_method_and_the_mechanism() -> None:
     assert moved == {(1, 3), (1, 4), (1, 5), (1, 6)}
     assert all(n["dy"] == 0 for n in wall["mechanism"]["nodes"])
     assert wall["mechanism"]["exact"] is True
+    # the exact check's count: every member raises the rigidity matrix's rank by at most one, so a rigid
+    # layout has at least as many members as the degrees of freedom the grid bars leave (the roof: 12 ties)
+    assert roof["maxwell"]["count"] == roof["braces"] + roof["ties"] == 12
+    assert roof["maxwell"]["count"] >= roof["maxwell"]["needed"]
 
 
 def test_check_complete_frames_say_digraph_and_without_a_ledger_says_exact() -> None:

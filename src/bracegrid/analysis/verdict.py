@@ -119,5 +119,12 @@ class Verdict:
 
     @property
     def maxwell_count(self) -> float:
-        """Braces plus half the ties, to set against :attr:`maxwell_needed`."""
+        """The count to set against :attr:`maxwell_needed`.
+
+        On a complete grid (digraph rule) braces plus half the ties: a tie holds one racking sense. On
+        a general frame (exact check) braces plus ties: each member raises the rank of the rigidity
+        matrix by at most one, and a rigid layout must reach the degrees of freedom left.
+        """
+        if self.method is CheckMethod.EXACT:
+            return float(self.braces + self.ties)
         return self.braces + self.ties / 2

@@ -80,7 +80,8 @@ def render_check(
         "weighted count = braces + ties/2 (a tie holds one racking sense, half a brace); least needed = the "
         "weighted count every stable layout reaches (rows + columns - 1; rows on a pinned base)"
         + (
-            "; method exact (missing grid bars or an outline): least needed = degrees of freedom left by the "
+            "; method exact (missing grid bars or an outline): weighted count = braces + ties (each member "
+            "raises the rigidity matrix's rank by at most one), least needed = degrees of freedom left by the "
             "grid bars and supports, the rank a rigid layout's members must reach"
             if any(v.method is CheckMethod.EXACT for v in verdicts)
             else ""
