@@ -18,7 +18,7 @@ import re
 from collections.abc import Mapping
 from typing import Any
 
-from bracegrid.io.loads import Problems
+from bracegrid.io.loads import Problems, frame_table_lines
 from bracegrid.model import (
     Frame,
     GridBar,
@@ -33,22 +33,6 @@ from bracegrid.model import (
 #: Keys of a ``[[frame]]`` table read here.
 FRAME_KEYS = {"missing", "absent"}
 _MISSING_KEYS = {"bar", "line", "span"}
-
-
-def _header_lines(text: str) -> list[list[int]]:
-    """Line numbers of the ``[[frame.missing]]`` headers, one list per ``[[frame]]``."""
-    header = re.compile(r"^\s*\[\[\s*(frame(?:\s*\.\s*[A-Za-z_]+)?)\s*\]\]")
-    out: list[list[int]] = []
-    for number, line in enumerate(text.splitlines(), start=1):
-        match = header.match(line)
-        if match is None:
-            continue
-        name = match.group(1).replace(" ", "")
-        if name == "frame":
-            out.append([])
-        elif name == "frame.missing" and out:
-            out[-1].append(number)
-    return out
 
 
 def _whole(col: Problems, where: str, value: object) -> int | None:
@@ -137,7 +121,7 @@ def add_frame_general(col: Problems, frame: Frame, raw: Mapping[str, Any], *, in
     if not isinstance(raw_missing, list):
         col.add(f"{where}.missing", "write each missing grid bar as a [[frame.missing]] table")
         raw_missing = []
-    lines = _header_lines(text)
+    lines = frame_table_lines(text, "missing")
     at = lines[index] if index < len(lines) else []
     missing: dict[GridBar, str] = {}
     for k, item in enumerate(raw_missing):

@@ -53,8 +53,8 @@ class Problems(Protocol):
         """Record every key of ``table`` not in ``known``."""
 
 
-def _header_lines(text: str) -> list[list[int]]:
-    """Line numbers of the ``[[frame.load]]`` headers, one list per ``[[frame]]``."""
+def frame_table_lines(text: str, sub: str) -> list[list[int]]:
+    """Line numbers of the ``[[frame.<sub>]]`` headers, one list per ``[[frame]]`` (for located messages)."""
     header = re.compile(r"^\s*\[\[\s*(frame(?:\s*\.\s*[A-Za-z_]+)?)\s*\]\]")
     out: list[list[int]] = []
     for number, line in enumerate(text.splitlines(), start=1):
@@ -64,7 +64,7 @@ def _header_lines(text: str) -> list[list[int]]:
         name = match.group(1).replace(" ", "")
         if name == "frame":
             out.append([])
-        elif name == "frame.load" and out:
+        elif name == f"frame.{sub}" and out:
             out[-1].append(number)
     return out
 
@@ -295,7 +295,7 @@ def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, inde
     if not isinstance(raw_loads, list):
         col.add(f"{where}.load", "write each load case as a [[frame.load]] table")
         raw_loads = []
-    lines = _header_lines(text)
+    lines = frame_table_lines(text, "load")
     at = lines[index] if index < len(lines) else []
     for k, item in enumerate(raw_loads):
         line = f"line {at[k]}, " if k < len(at) else ""
