@@ -14,9 +14,10 @@ from bracegrid.model import Racking, Supports
 
 #: The caution every report, drawing title block and the README carries.
 CAUTION = (
-    "bracegrid proves only that the layout leaves no mechanism (first-order, pin-jointed, "
-    "ties taut). Member sizing, connections, foundations, loads and code compliance rest "
-    "with a licensed engineer and the local codes."
+    "bracegrid checks only that the layout leaves no mechanism and, where loads and capacities "
+    "are entered, carries those loads within them (first-order, pin-jointed, ties taut). Member "
+    "sizing, connections, foundations, loads and code compliance rest with a licensed engineer "
+    "and the local codes."
 )
 
 
