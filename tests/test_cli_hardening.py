@@ -62,6 +62,21 @@ def test_every_exit_code_is_listed_in_help_and_readme(capsys: pytest.CaptureFixt
     assert "out/ in the current directory" in flat
 
 
+def _subcommands() -> list[str]:
+    import argparse
+
+    sub = next(a for a in cli.build_parser()._actions if isinstance(a, argparse._SubParsersAction))
+    return sorted(sub.choices)
+
+
+@pytest.mark.parametrize("command", _subcommands())
+def test_every_subcommand_help_prints(command: str, capsys: pytest.CaptureFixture[str]) -> None:
+    """argparse expands every help string with %-formatting: a bare '%' crashed optimize --help."""
+    code, _, _ = run(command, "--help")
+    assert code == 0
+    assert "usage: bracegrid" in capsys.readouterr().out
+
+
 @pytest.mark.parametrize(
     "argv",
     [

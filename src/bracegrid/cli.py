@@ -603,7 +603,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_solver_options(
         opt,
         per="frame",
-        whole="this bounds the whole run, reading, set-up and writing included (within 10%); "
+        whole="this bounds the whole run, reading, set-up and writing included (within 10%%); "
         "if no layout is ready by then: exit 4",
     )
     opt.add_argument("--write", metavar="OUT.toml", help="write the project with the new members added")
