@@ -27,6 +27,7 @@ import pytest
 from bracegrid.io import load_project
 from bracegrid.mechanics import analyse_frame
 from bracegrid.model import MemberKind
+from bracegrid.optimize import SolveOptions, SolveStatus, optimize_frame
 from tests.physics import physically_rigid
 from tests.web.helpers import ROOT, copy_project
 
@@ -333,3 +334,32 @@ def test_members_coloured_by_utilisation_after_the_verdict(page: Any, served: tu
     page.uncheck("#colour-util")
     assert page.locator("#layer-members line.rated").count() == 0
     assert page.locator("#layer-util line").count() == 0
+
+
+@pytest.mark.parametrize("served", ["quayside-scaffold.toml"], indirect=True)
+def test_stability_only_checkbox_prices_stability_alone(page: Any, served: tuple[str, Path]) -> None:
+    """Quayside street face (invented loads): the box switches the editor's optimize to stability alone.
+
+    Both optima are proven, so the page's totals must equal the library's for the same frame.
+    """
+    url, project = served
+    loaded = load_project(project)
+    frame = loaded.frames[0]
+    want = {
+        only: optimize_frame(frame, loaded.costs, strength=loaded.strength,
+                             options=SolveOptions(time_limit=30, workers=1, stability_only=only))  # fmt: skip
+        for only in (True, False)
+    }
+    assert all(s.status is SolveStatus.OPTIMAL for s in want.values())
+    assert want[True].cost < want[False].cost  # the loads cost something here
+    _open(page, url)
+    page.fill("#time-limit", "30")
+    for only in (True, False):
+        page.set_checked("#stability-only", only)
+        page.click("#optimize")
+        page.wait_for_selector("#proposal-card:not([hidden])", timeout=90000)
+        text = page.inner_text("#proposal-text")
+        assert f"whole layout {want[only].cost:.2f}" in text, text
+        assert "proven cheapest" in text
+        page.click("#discard")
+        page.wait_for_selector("#proposal-card", state="hidden")
