@@ -345,11 +345,11 @@ def test_stability_only_checkbox_prices_stability_alone(page: Any, served: tuple
     url, project = served
     loaded = load_project(project)
     frame = loaded.frames[0]
-    want = {
-        only: optimize_frame(frame, loaded.costs, strength=loaded.strength,
-                             options=SolveOptions(time_limit=30, workers=1, stability_only=only))  # fmt: skip
-        for only in (True, False)
-    }
+    def solve(only: bool) -> Any:
+        options = SolveOptions(time_limit=30, workers=1, stability_only=only)
+        return optimize_frame(frame, loaded.costs, strength=loaded.strength, options=options)
+
+    want = {only: solve(only) for only in (True, False)}
     assert all(s.status is SolveStatus.OPTIMAL for s in want.values())
     assert want[True].cost < want[False].cost  # the loads cost something here
     _open(page, url)
