@@ -345,6 +345,7 @@ def test_stability_only_checkbox_prices_stability_alone(page: Any, served: tuple
     url, project = served
     loaded = load_project(project)
     frame = loaded.frames[0]
+
     def solve(only: bool) -> Any:
         options = SolveOptions(time_limit=30, workers=1, stability_only=only)
         return optimize_frame(frame, loaded.costs, strength=loaded.strength, options=options)
