@@ -120,8 +120,13 @@ def optimize_frame(
     if not 0 <= k <= MAX_REDUNDANCY:
         msg = f"frame {frame.name!r}: redundancy {k} is outside 0..{MAX_REDUNDANCY}; ask for fewer member losses"
         raise InputError(msg)
+    use_loads = strength is not None and bool(frame.loads) and has_capacities(strength)
     if not frame.is_complete:
-        return _optimize_general(frame, costs, options=options, on_progress=on_progress)
+        sol = _optimize_general(frame, costs, options=options, on_progress=on_progress, strength=strength)
+        if strength is None or not frame.loads:
+            return sol
+        check = strength_check(frame, strength, sol.members, searched=not options.stability_only and use_loads)
+        return dataclasses.replace(sol, strength=check)
     kept = tuple(frame.members)
     table = bay_table(frame, costs, kept, allow)
     reasons = infeasible_reasons(frame, table, allow, k)
@@ -143,7 +148,6 @@ def optimize_frame(
             )
         )
 
-    use_loads = strength is not None and bool(frame.loads) and has_capacities(strength)
     if not options.stability_only and (use_loads or frame.rules.any):
         # The stability-only optimum first (a fifth of the time at most): its bound holds here too,
         # and on free frames its layout, repaired to carry the loads, is the first incumbent.
@@ -174,9 +178,19 @@ def optimize_frame(
 
 
 def _optimize_general(
-    frame: Frame, costs: CostCatalogue, *, options: SolveOptions, on_progress: Progress | None
+    frame: Frame,
+    costs: CostCatalogue,
+    *,
+    options: SolveOptions,
+    on_progress: Progress | None,
+    strength: StrengthCatalogue | None,
 ) -> FrameSolution:
-    """A general frame: the complete grid's optimum (same open bays) as bound and first try, then mechanism cuts."""
+    """A general frame: the complete grid's optimum (same open bays) as bound and first try, then mechanism cuts.
+
+    The complete grid's optimum is searched for stability and rules only: a layout that carries the
+    loads on the general frame is stable and within the rules on the complete grid, so its bound
+    holds; the complete grid's elastic exclusions would not (the elastic check is not monotone).
+    """
     share = dataclasses.replace(options, time_limit=0.3 * options.time_limit, redundancy=0)
     try:
         floor = optimize_frame(complete_version(frame), costs, options=share)
@@ -185,7 +199,7 @@ def _optimize_general(
     bound = 0 if floor is None else round(100 * (floor.bound - layout_cost(frame, costs, frame.members)))
     hint = () if floor is None else tuple(m for m in floor.members if not m.existing)
     return optimize_general(frame, costs, options=options, on_progress=on_progress,
-                            lower_bound_cents=max(0, bound), hint=hint)  # fmt: skip
+                            lower_bound_cents=max(0, bound), hint=hint, strength=strength)  # fmt: skip
 
 
 def _solve(

@@ -42,10 +42,16 @@ from bracegrid.model import (
     Frame,
     Member,
     MemberKind,
+    StrengthCatalogue,
     blocked_bays,
     layout_cost,
 )
+from bracegrid.optimize.bays import bay_table
+from bracegrid.optimize.benders import strength_reasons
+from bracegrid.optimize.capacity import has_capacities
+from bracegrid.optimize.loadcuts import LoadChecks, Row, meets_rules, no_good, rule_matrix
 from bracegrid.optimize.results import FrameSolution, ProgressEvent, SolveMethod, SolveOptions, SolveStatus
+from bracegrid.optimize.rules import rule_reasons, rule_rows
 
 Progress = Callable[[ProgressEvent], None]
 #: A candidate counts as stretched by a floating-point flex (from the tie LP) when its elongation
@@ -181,12 +187,21 @@ class _Master:
     proven: bool
 
 
-def _solve_master(cands: Candidates, cuts: list[list[int]], time_left: float, counts: dict[int, int]) -> _Master | None:
+def _solve_master(
+    cands: Candidates,
+    cuts: list[list[int]],
+    time_left: float,
+    counts: dict[int, int],
+    extra: Sequence[Row] = (),
+    helpers: int = 0,
+) -> _Master | None:
     """The 0/1 master: cheapest candidates meeting every cut (at least one member of each, or
-    ``counts[i]`` of cut i), one member per diagonal (HiGHS)."""
+    ``counts[i]`` of cut i), one member per diagonal, and the ``extra`` rows (rules, capacity and
+    no-good cuts) over the candidates and ``helpers`` free 0/1 helper variables (HiGHS)."""
     n = len(cands.members)
     if n == 0:
         return _Master((), 0, True)
+    width = n + helpers
     rows, cols = [], []
     for r, cut in enumerate(cuts):
         rows += [r] * len(cut)
@@ -196,13 +211,20 @@ def _solve_master(cands: Candidates, cuts: list[list[int]], time_left: float, co
     constraints = []
     a = sp.csr_matrix(
         (np.ones(len(rows) + n), (np.concatenate([rows, slot_rows]).astype(int), np.concatenate([cols, np.arange(n)]))),
-        shape=(len(cuts) + int(slot.max()) + 1, n),
+        shape=(len(cuts) + int(slot.max()) + 1, width),
     )
     lb = np.concatenate([[float(counts.get(i, 1)) for i in range(len(cuts))], np.zeros(a.shape[0] - len(cuts))])
     ub = np.concatenate([np.full(len(cuts), np.inf), np.ones(a.shape[0] - len(cuts))])
     constraints.append(LinearConstraint(a, lb, ub))
+    if extra:
+        e_rows = np.concatenate([np.full(len(r.cols), i) for i, r in enumerate(extra)]).astype(int)
+        e_cols = np.concatenate([np.array(r.cols, dtype=int) for r in extra]).astype(int)
+        e_vals = np.concatenate([np.array(r.coefs, dtype=float) for r in extra])
+        b = sp.csr_matrix((e_vals, (e_rows, e_cols)), shape=(len(extra), width))
+        constraints.append(LinearConstraint(b, [r.lo for r in extra], [r.hi for r in extra]))
+    price = np.concatenate([np.array(cands.cents, dtype=float), np.zeros(helpers)])
     res = milp(
-        np.array(cands.cents, dtype=float), constraints=constraints, integrality=np.ones(n),
+        price, constraints=constraints, integrality=np.ones(width),
         # mip_rel_gap 0: HiGHS's default (1e-4) would call a layout a few cents dear "optimal"
         bounds=Bounds(0, 1), options={"time_limit": max(0.5, time_left), "disp": False, "mip_rel_gap": 0.0},
     )  # fmt: skip
@@ -210,7 +232,7 @@ def _solve_master(cands: Candidates, cuts: list[list[int]], time_left: float, co
         return _Master((), 0, False)  # infeasible: the caller reports it
     if res.x is None:
         return None
-    chosen = tuple(int(k) for k in np.flatnonzero(res.x > 0.5))
+    chosen = tuple(int(k) for k in np.flatnonzero(res.x[:n] > 0.5))
     bound = getattr(res, "mip_dual_bound", None)
     proven = res.status == 0
     value = round(float(res.fun))
@@ -260,8 +282,13 @@ def optimize_general(
     on_progress: Progress | None = None,
     lower_bound_cents: int = 0,
     hint: Sequence[Member] = (),
+    strength: StrengthCatalogue | None = None,
 ) -> FrameSolution:
     """Find a minimum-cost stable layout for a general frame, keeping its members.
+
+    With capacities (``strength``) and load cases the layout must also carry every case, plastically
+    and elastically, and it must follow the frame's spreading rules (:mod:`bracegrid.optimize.loadcuts`),
+    unless ``options.stability_only``.
 
     Args:
         frame: The frame (outline, missing grid bars); its members are kept.
@@ -270,6 +297,7 @@ def optimize_general(
         on_progress: Called with progress events.
         lower_bound_cents: A proven bound on the added cost (the complete grid's optimum).
         hint: A layout of added members to try first (the complete grid's optimum).
+        strength: Capacities and stiffness (None: stability and rules only).
 
     Returns:
         The layout, re-verified by the exact check, with its bound and gap.
@@ -295,6 +323,17 @@ def optimize_general(
     reasons = _infeasible(frame, kept, cands)
     if reasons:
         raise InfeasibleError(reasons)
+    rows = [] if options.stability_only else rule_rows(frame)
+    checks = None
+    if strength is not None and frame.loads and has_capacities(strength) and not options.stability_only:
+        checks = LoadChecks(frame, strength, kept, cands.members)
+    if rows or checks is not None:
+        table = bay_table(complete_version(frame), costs, kept, allow)
+        reasons = rule_reasons(frame, table, rows) + ([] if checks is None else strength_reasons(checks.pf, table))
+        if reasons:
+            raise InfeasibleError([f"frame {frame.name!r}: {r}" for r in reasons])
+    extra, helpers = rule_matrix(kept, cands.members, rows)
+    plastic_only: list[int] | None = None
     index = {(m.row, m.col, m.diagonal, m.kind): i for i, m in enumerate(cands.members)}
     hinted = [index[(m.row, m.col, m.diagonal, m.kind)] for m in hint if (m.row, m.col, m.diagonal, m.kind) in index]
     # Count cut: each member raises the rank of the all-bars framework by at most one, and a rigid
@@ -323,12 +362,22 @@ def optimize_general(
         layout = kept + tuple(cands.members[i] for i in trial)
         result = exact_rigidity(frame, layout)
         cost = sum(cands.cents[i] for i in trial)
-        if result.rigid and cost <= bound:
+        adequate = result.rigid and meets_rules(kept, layout[len(kept) :], rows)
+        if adequate and checks is not None:
+            more = checks.capacity_cuts(trial)
+            if more:  # valid for every layout that carries the cases
+                extra.extend(more)
+                adequate = False
+            elif not checks.elastic_ok(trial):  # carries plastically only: exclude exactly this layout
+                plastic_only = plastic_only or trial
+                extra.append(no_good(trial, len(cands.members)))
+                adequate = False
+        if adequate and cost <= bound:
             answer, proven = trial, True
             break
-        if result.rigid:
+        if adequate:
             answer = trial if answer is None or cost < sum(cands.cents[i] for i in answer) else answer
-        else:
+        elif not result.rigid:
             new = directed_cuts(frame, layout, cands)
             mech = mechanism_cuts(result, frame, cands)
             if not mech[0]:
@@ -341,22 +390,39 @@ def optimize_general(
             cuts.extend(new)
         if time.monotonic() >= deadline:
             break
-        master = _solve_master(cands, cuts, deadline - time.monotonic(), counts)
+        master = _solve_master(cands, cuts, deadline - time.monotonic(), counts, extra, helpers)
         rounds += 1
         if master is None:
             break
         if not master.proven and not master.chosen:
-            raise InfeasibleError([f"frame {frame.name!r}: the cuts admit no layout; this is a bracegrid bug"])
+            if not extra:
+                raise InfeasibleError([f"frame {frame.name!r}: the cuts admit no layout; this is a bracegrid bug"])
+            if answer is None and plastic_only is None:
+                asked = " and ".join(w for w, on in (("the load cases", checks is not None), ("the spreading rules",
+                                     bool(rows))) if on)  # fmt: skip
+                raise InfeasibleError([f"frame {frame.name!r}: no stable layout meets {asked}; relax a rule, "
+                                       "clear more bays or allow stronger members"])  # fmt: skip
+            proven = answer is not None  # every layout cheaper than the answer is cut off
+            if proven:
+                bound = sum(cands.cents[i] for i in answer or [])
+            break
         bound = max(bound, master.bound)
-        report(f"mechanism cuts (round {rounds}, {len(cuts)} cuts)", None)
+        report(f"mechanism cuts (round {rounds}, {len(cuts) + len(extra)} cuts)", None)
         if not master.proven:
             break
         trial = list(master.chosen)
-    if answer is None:
+    if answer is None and plastic_only is None:
         answer = _greedy(frame, kept, cands, hinted)
+        if answer is not None and checks is not None:
+            answer = checks.repair(answer, cands.cents, cands.slot, deadline + 0.1 * options.time_limit)
+        if answer is not None and not meets_rules(kept, [cands.members[i] for i in answer], rows):
+            answer = None
         if answer is None:
             msg = f"frame {frame.name!r}: no stable layout found within {options.time_limit:g} s; raise the time limit"
             raise SolverLimitError(msg)
+    if answer is None:
+        answer, proven = plastic_only, False  # reported as failing the elastic check
+    assert answer is not None
     new_members = tuple(sorted((cands.members[i] for i in answer), key=lambda m: m.sort_key))
     members = kept + new_members
     verdict = check_any(frame, members)
@@ -377,9 +443,9 @@ def optimize_general(
         gap=0.0 if proven or added == 0 else round((added - bound) / added, 6),
         seconds=round(time.monotonic() - start, 3),
         verdict=verdict,
-        method=SolveMethod.MECHANISM_CUTS,
+        method=SolveMethod.MECHANISM_CUTS if checks is None and not rows else SolveMethod.GENERAL_STRENGTH,
         rounds=rounds,
-        cuts=len(cuts),
+        cuts=len(cuts) + len(extra),
     )
 
 

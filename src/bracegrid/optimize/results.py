@@ -36,6 +36,8 @@ class SolveMethod(Enum):
     """A general frame: HiGHS MILP rounds with cuts from mechanisms (exact check) and from the digraph."""
     STRENGTH_CUTS = "strength-cuts"
     """CP-SAT over candidate members with stability, rule, capacity (flow and Benders) and elastic cuts."""
+    GENERAL_STRENGTH = "general-strength-cuts"
+    """A general frame with loads or rules: HiGHS MILP rounds with mechanism, rule, capacity and elastic cuts."""
 
 
 class SolveStatus(Enum):
@@ -92,6 +94,9 @@ def method_how(method: SolveMethod, *, pattern: PatternKind | None = None, round
     if method is SolveMethod.MECHANISM_CUTS:
         counts = f"{_count(rounds, 'round')}, {_count(cuts, 'cut')}"
         return f"HiGHS MILP with mechanism and directed cuts, exact check ({counts})"
+    if method is SolveMethod.GENERAL_STRENGTH:
+        counts = f"{_count(rounds, 'round')}, {_count(cuts, 'cut')}"
+        return f"HiGHS MILP with mechanism, rule and capacity cuts, exact and elastic checks ({counts})"
     if method is SolveMethod.STRENGTH_CUTS:
         return f"CP-SAT with stability, rule and capacity cuts ({_count(rounds, 'round')}, {_count(cuts, 'cut')})"
     return _METHOD_WORDS[method]
