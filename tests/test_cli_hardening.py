@@ -328,3 +328,21 @@ def test_version_and_check_do_not_load_the_heavy_libraries() -> None:
     )
     done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, timeout=60, check=False)
     assert done.stdout.strip() == "0 []", done.stderr
+
+
+def test_native_prints_never_reach_stdout() -> None:
+    """A solver's own C-level print (HiGHS printed one on a fuzzed general frame) goes to stderr."""
+    script = (
+        "import ctypes, sys\n"
+        "import bracegrid.cli as cli\n"
+        "real = cli._run\n"
+        "def noisy(args, out, stderr):\n"
+        "    ctypes.CDLL(None).puts(b'native solver chatter')\n"
+        "    return real(args, out, stderr)\n"
+        "cli._run = noisy\n"
+        f"sys.exit(cli.main(['check', {SHED!r}, '--json'], signalled=lambda: False))\n"
+    )
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=120, check=False)
+    assert done.returncode == 0, done.stderr
+    assert json.loads(done.stdout)["frames"]
+    assert "native solver chatter" in done.stderr

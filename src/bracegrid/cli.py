@@ -18,7 +18,6 @@ import contextlib
 import io
 import json
 import os
-import re
 import signal
 import sys
 import threading
@@ -85,6 +84,7 @@ from bracegrid.outputs import (
     render_robustness_plot,
     robustness_dict,
     robustness_panels,
+    visible_text,
 )
 from bracegrid.web import (
     EditorPaths,
@@ -129,10 +129,6 @@ _GRACE_S = 1.5
 
 #: Where outputs go without --out: a folder in the current directory, never beside the input file.
 DEFAULT_OUT = Path("out")
-
-# C0 and C1 control characters except the newline, and the bidirectional overrides: escaped in
-# terminal text so a name cannot move the cursor, ring, erase or reorder what the table shows.
-_UNSAFE = re.compile("[\x00-\x09\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
 
 #: How each error is labelled on stderr and which exit code it gives (first match wins).
 _EXIT_FOR: tuple[tuple[type[BraceGridError], str, int], ...] = (
@@ -754,7 +750,8 @@ def main(
             if signalled is not None and signalled():
                 raise KeyboardInterrupt
             args.whole_run_limit = signalled is not None  # only the script, never an in-process caller
-            code = _run(args, buffer, stderr)
+            with _native_prints_to_stderr() if signalled is not None else contextlib.nullcontext():
+                code = _run(args, buffer, stderr)
             return _deliver(buffer.getvalue(), stdout, stderr, code, escape=not getattr(args, "json", False))
         except KeyboardInterrupt:  # a signal while the results are being delivered
             _say(stderr, "interrupted")
@@ -792,7 +789,7 @@ def terminal_text(text: str) -> str:
         >>> terminal_text("frame \x1b[31mred\x00\n")
         'frame \\x1b[31mred\\x00\n'
     """
-    return _UNSAFE.sub(lambda m: m.group().encode("unicode_escape").decode("ascii"), text)
+    return visible_text(text, one_line=False)
 
 
 def _say(stream: TextIO | None, message: str) -> None:
@@ -837,6 +834,45 @@ def _deliver(text: str, stdout: TextIO | None, stderr: TextIO | None, code: int,
         _silence(stdout)
         return EXIT_IO
     return code
+
+
+def _flush_native() -> None:
+    """Flush the C library's own output buffers (a solver's printf) into the descriptor they point at."""
+    with contextlib.suppress(Exception):
+        import ctypes  # the standard library's; loaded only for this flush
+
+        ctypes.CDLL(None).fflush(None)
+
+
+@contextlib.contextmanager
+def _native_prints_to_stderr() -> Iterator[None]:
+    """While a command runs, whatever writes to file descriptor 1 directly lands on stderr instead.
+
+    The results go to stdout only afterwards, from the buffer. Solvers' native code may print a
+    diagnostic of its own (HiGHS printed "HighsMipSolverData::transformNewIntegerFeasibleSolution"
+    on one fuzzed general frame): on stdout it would break every ``--json`` reader. Skipped when
+    either descriptor is unusable (a closed stream: the usual rules apply then).
+    """
+    try:
+        sys.stdout.flush()
+        saved = os.dup(1)
+    except (OSError, ValueError, AttributeError, io.UnsupportedOperation):
+        yield
+        return
+    try:
+        os.dup2(2, 1)
+    except OSError:
+        os.close(saved)
+        yield
+        return
+    try:
+        yield
+    finally:
+        with contextlib.suppress(OSError, ValueError, AttributeError):
+            sys.stdout.flush()
+        _flush_native()
+        os.dup2(saved, 1)
+        os.close(saved)
 
 
 @contextlib.contextmanager

@@ -133,8 +133,10 @@ class LoadChecks:
         return chosen
 
     def _row(self, cut: CapacityCut) -> Row:
+        """The cut divided by its right-hand side (coefficients at most 1: HiGHS's tolerances and
+        scaling suit that better than CP-SAT's whole numbers up to 10^6; the answers are re-checked)."""
         cols = tuple(k - self.offset for k, _ in cut.terms)
-        return Row(cols, tuple(float(c) for _, c in cut.terms), float(cut.need), float("inf"))
+        return Row(cols, tuple(c / cut.need for _, c in cut.terms), 1.0, float("inf"))
 
     def capacity_cuts(self, trial: Sequence[int]) -> list[Row]:
         """Cuts from each case the layout does not carry plastically (empty: it carries them all)."""

@@ -15,6 +15,7 @@ from bracegrid.outputs.robustplot import (
     robustness_panels,
     strategy_panels,
 )
+from bracegrid.outputs.safetext import short_label, visible_text
 from bracegrid.outputs.shapes import check_dict, compare_dict, forces_dict, optimize_dict, robustness_dict
 from bracegrid.outputs.text import (
     progress_line,
@@ -62,7 +63,9 @@ __all__ = [
     "render_robustness_plot",
     "robustness_dict",
     "robustness_panels",
+    "short_label",
     "strategy_panels",
+    "visible_text",
     "write_dxf",
     "write_preview",
 ]

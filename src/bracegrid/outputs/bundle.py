@@ -97,14 +97,22 @@ def parse_formats(text: str) -> tuple[OutputFormat, ...]:
     return tuple(chosen)
 
 
+#: Longest frame part of a file name: file systems allow 255 bytes per name, and the project's
+#: stem, the "-forces-" part, a sheet number and the suffix come on top (two frames that share the
+#: first characters get numbered apart by the callers).
+SLUG_CHARS = 60
+
+
 def file_slug(name: str) -> str:
-    """A file-name-safe form of a frame or project name.
+    """A file-name-safe form of a frame or project name, at most :data:`SLUG_CHARS` long.
 
     Example:
         >>> file_slug("West end frame #2")
         'west-end-frame-2'
+        >>> len(file_slug("x" * 300))
+        60
     """
-    slug = re.sub(r"[^a-z0-9]+", "-", name.lower()).strip("-")
+    slug = re.sub(r"[^a-z0-9]+", "-", name.lower()).strip("-")[:SLUG_CHARS].strip("-")
     return slug or "frame"
 
 

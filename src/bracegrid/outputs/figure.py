@@ -12,7 +12,6 @@ the sheet (:func:`bracegrid.outputs.markers.place_markers`).
 
 from __future__ import annotations
 
-import html
 import math
 from collections.abc import Sequence
 
@@ -22,6 +21,7 @@ from bracegrid.analysis import Verdict
 from bracegrid.model import Diagonal, Frame, MemberKind, Supports, bay_box, bays_blocked_by, blocked_bays
 from bracegrid.outputs.drawing import label_spot, outline_points, part_label, part_tag
 from bracegrid.outputs.markers import MarkerKind, place_markers
+from bracegrid.outputs.safetext import markup_text as _e
 from bracegrid.outputs.symbols import bay_tag_outline, critical_diamond, sense_shape
 from bracegrid.outputs.terms import BLOCKED_LABEL
 
@@ -38,10 +38,6 @@ MAX_BAY_PX = 120.0
 _FONT = 'font-family="system-ui,-apple-system,Segoe UI,Helvetica,Arial,sans-serif"'
 _COLORS = {"new": "#d92d20", "old": "#1849a9", "sense": "#1d2327", "crit": "#c11574", "opening": "#067647"}
 _TAG_W, _TAG_H = 30.0, 15.0
-
-
-def _e(text: object) -> str:
-    return html.escape(str(text), quote=True)
 
 
 def fmt_px(value: float) -> str:

@@ -10,7 +10,6 @@ A case that finds a mechanism shades the rows and columns that move.
 
 from __future__ import annotations
 
-import html
 import math
 
 from bracegrid.mechanics import BarKind, CaseForces
@@ -18,6 +17,7 @@ from bracegrid.model import Frame, Supports
 from bracegrid.outputs.figure import bay_scale, fmt_px
 from bracegrid.outputs.forcesheet import bar_ends
 from bracegrid.outputs.ramp import OVER_RGB, RAMP, UNRATED_RGB, hex_colour, utilisation_rgb
+from bracegrid.outputs.safetext import markup_text
 
 _FONT = 'font-family="system-ui,-apple-system,Segoe UI,Helvetica,Arial,sans-serif"'
 #: Labels are written where a bay is at least this many pixels wide and high (else they would overlap).
@@ -62,7 +62,7 @@ def force_svg(frame: Frame, case: CaseForces, *, title: str) -> str:
     out = [
         f'<svg xmlns="http://www.w3.org/2000/svg" width="{n(width)}" height="{n(height)}" '
         f'viewBox="0 0 {n(width)} {n(height)}" role="img" {_FONT} font-size="10">'
-        f"<title>{html.escape(title)}</title>"
+        f"<title>{markup_text(title)}</title>"
     ]
     if case.is_mechanism and case.mechanism is not None:
         for r, _ in case.mechanism.rows:
@@ -181,5 +181,5 @@ def force_legend_html(*, rated: bool) -> str:
             "vertical base reaction, kN, up +",
         ),
     ]
-    items = "".join(f"<li>{a}<span>{html.escape(b)}</span></li>" for a, b in rows)
+    items = "".join(f"<li>{a}<span>{markup_text(b)}</span></li>" for a, b in rows)
     return f'<ul class="legend">{items}</ul>'

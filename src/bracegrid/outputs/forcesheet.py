@@ -26,6 +26,7 @@ from bracegrid.model import Diagonal, Frame, Project, Supports, present_grid_bar
 from bracegrid.outputs.forcetext import drift_text, util_text
 from bracegrid.outputs.layers import Field, Layer, LayerSpec
 from bracegrid.outputs.ramp import OVER_RGB, UNRATED_RGB, utilisation_rgb
+from bracegrid.outputs.safetext import visible_text
 from bracegrid.outputs.sheet import (
     GAP,
     H_LABEL,
@@ -181,6 +182,7 @@ class _Ink:
     ) -> None:
         from ezdxf.enums import TextEntityAlignment
 
+        text = visible_text(text)  # names may hold control characters (bracegrid.outputs.safetext)
         point = (self.origin[0] + x, self.origin[1] + y) if model else self.at(x, y)
         if mask:
             half_w = (text_width(text, height) / 2 + 0.4) * self.scale
@@ -580,7 +582,7 @@ def _draw_notes(ink: _Ink, text: str, x: float, y: float) -> None:
     pts = [ink.at(x, y), ink.at(x + _NOTES_W, y), ink.at(x + _NOTES_W, y + _BAR_H), ink.at(x, y + _BAR_H)]
     ink.msp.add_lwpolyline(pts, close=True, dxfattribs={"layer": ForceLayer.NOTE.layer_name})
     mtext = ink.msp.add_mtext(
-        text,
+        visible_text(text),
         dxfattribs={
             "layer": ForceLayer.NOTE.layer_name,
             "style": TEXT_STYLE,

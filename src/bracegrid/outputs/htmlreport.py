@@ -9,7 +9,6 @@ total rows are the sums of its item rows (the bill's one rounding rule).
 
 from __future__ import annotations
 
-import html
 from collections.abc import Sequence
 from datetime import date
 
@@ -23,6 +22,7 @@ from bracegrid.outputs.figure import frame_svg, legend_html, symbol_defs
 from bracegrid.outputs.forcefigure import force_defs, force_legend_html, force_svg
 from bracegrid.outputs.forcetext import drift_text, util_text
 from bracegrid.outputs.robustplot import expected_words, inline_plot_svg, strategy_panels
+from bracegrid.outputs.safetext import markup_text as _e
 from bracegrid.outputs.terms import (
     COST,
     COUNT,
@@ -57,10 +57,6 @@ ul.legend li{display:flex;align-items:center;gap:.5rem;margin:.1rem 0}ul.legend 
 .note{font-size:.85rem;color:#444;text-align:left}
 @media print{figure{break-inside:avoid}h2{break-before:page}figure .draw{max-height:none}}
 """
-
-
-def _e(text: object) -> str:
-    return html.escape(str(text), quote=True)
 
 
 def _money(value: float | None) -> str:

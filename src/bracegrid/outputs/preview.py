@@ -28,6 +28,7 @@ from typing import TYPE_CHECKING, Any, Protocol
 
 from bracegrid.errors import ExportError
 from bracegrid.io import write_bytes_atomic
+from bracegrid.outputs.safetext import missing_glyphs_quiet
 from bracegrid.outputs.sheet import SheetPlan
 
 if TYPE_CHECKING:
@@ -215,7 +216,10 @@ def render_preview(sheet: SheetLike, fmt: PreviewFormat, *, dpi: int = 150) -> b
         PreviewFormat.SVG: {"Date": None, "Creator": None},
         PreviewFormat.PDF: {"CreationDate": None, "ModDate": None, "Producer": None, "Creator": None},
     }[fmt]
-    with matplotlib.rc_context({"pdf.fonttype": 42, "svg.fonttype": "none", "svg.hashsalt": "bracegrid"}):
+    with (
+        missing_glyphs_quiet(),
+        matplotlib.rc_context({"pdf.fonttype": 42, "svg.fonttype": "none", "svg.hashsalt": "bracegrid"}),
+    ):
         fig.savefig(buffer, format=fmt.value, dpi=dpi, facecolor="white", metadata=metadata)
     return buffer.getvalue()
 

@@ -16,6 +16,7 @@ from enum import Enum
 
 from bracegrid.analysis import ROBUSTNESS_LIMITS, Robustness
 from bracegrid.compare import StrategyRobustness
+from bracegrid.outputs.safetext import LABEL_CHARS, missing_glyphs_quiet, short_label
 
 #: Line styles of successive curves on one panel.
 _STYLES = ("-", "--", "-.", ":", (0, (5, 1, 1, 1)))
@@ -124,7 +125,14 @@ def render_robustness_plot(panels: Sequence[PlotPanel], fmt: PlotFormat, *, dpi:
             ax.fill_between(xs, lows, highs, color=color, alpha=0.18, linewidth=0)
             # Equal curves (strategies that found the same layout) stay visible: wider lines first, dashes.
             width = 3.2 - 0.45 * min(n, 4)
-            ax.plot(xs, ys, color=color, linewidth=width, linestyle=style, label=f"{s.label}: {expected_words(r)}")
+            ax.plot(
+                xs,
+                ys,
+                color=color,
+                linewidth=width,
+                linestyle=style,
+                label=f"{short_label(s.label)}: {expected_words(r)}",
+            )
             exact = [(x, y) for x, y, p in zip(xs[1:], ys[1:], r.curve, strict=True) if p.exact]
             sampled = [(x, y) for x, y, p in zip(xs[1:], ys[1:], r.curve, strict=True) if not p.exact]
             if exact:
@@ -136,7 +144,7 @@ def render_robustness_plot(panels: Sequence[PlotPanel], fmt: PlotFormat, *, dpi:
         ax.xaxis.set_major_locator(MaxNLocator(integer=True))
         ax.set_xlabel("members lost at random (k)")
         ax.set_ylabel("P(no mechanism after k losses)")
-        ax.set_title(panel.title, loc="left", fontsize=11)
+        ax.set_title(short_label(panel.title, 2 * LABEL_CHARS), loc="left", fontsize=11)
         ax.grid(alpha=0.3)
         ax.legend(loc="upper left", bbox_to_anchor=(0.0, -0.16), fontsize=8, frameon=False)
     note = (
@@ -145,7 +153,10 @@ def render_robustness_plot(panels: Sequence[PlotPanel], fmt: PlotFormat, *, dpi:
     )
     fig.supxlabel(note, fontsize=6.5, x=0.01, ha="left", color="#444444", wrap=True)
     buffer = io.BytesIO()
-    with matplotlib.rc_context({"svg.hashsalt": "bracegrid-robustness", "svg.fonttype": "none"}):
+    with (
+        missing_glyphs_quiet(),
+        matplotlib.rc_context({"svg.hashsalt": "bracegrid-robustness", "svg.fonttype": "none"}),
+    ):
         metadata = {"Date": None} if fmt is PlotFormat.SVG else {"Software": None}
         fig.savefig(buffer, format=fmt.value, dpi=dpi, facecolor="white", metadata=metadata)
     return buffer.getvalue()

@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any
 from bracegrid.model import MemberKind
 from bracegrid.outputs.bill import Bom, BomTotals
 from bracegrid.outputs.layers import Layer, member_layer
+from bracegrid.outputs.safetext import visible_text
 from bracegrid.outputs.symbols import (
     BAY_TAG_BLOCK,
     BLOCKED_PATTERN,
@@ -202,11 +203,11 @@ class Pen:
         rotation: float = 0.0,
         color: int = 256,
     ) -> None:
-        """A one-line TEXT entity."""
+        """A one-line TEXT entity (control characters in names escaped: :mod:`bracegrid.outputs.safetext`)."""
         from ezdxf.enums import TextEntityAlignment
 
         entity = self.msp.add_text(
-            text,
+            visible_text(text),
             height=height * self.scale,
             rotation=rotation,
             dxfattribs={"layer": layer.layer_name, "style": TEXT_STYLE, "color": color},
@@ -574,7 +575,7 @@ def caution_mtext(pen: Pen, text: str, x: float, y: float, *, width: float) -> N
     from ezdxf.enums import MTextEntityAlignment
 
     mtext = pen.msp.add_mtext(
-        text,
+        visible_text(text),
         dxfattribs={
             "layer": Layer.TITLE.layer_name,
             "style": TEXT_STYLE,
