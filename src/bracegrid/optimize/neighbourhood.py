@@ -59,6 +59,8 @@ class BlockStats:
         improved: Blocks that lowered the layout's cost.
         solves: CP-SAT calls.
         pool: Directed cuts in the pool at the end.
+        last_gain: Number of the last block that improved (0 = none did).
+        history: The layout's cost after each improvement (cost units).
     """
 
     blocks: int = 0
@@ -66,6 +68,7 @@ class BlockStats:
     improved: int = 0
     solves: int = 0
     pool: int = 0
+    last_gain: int = 0
     history: list[int] = field(default_factory=list)
 
 
@@ -122,12 +125,11 @@ def block_search(
     cuts: dict[frozenset[int], int] = {}
     for c in pool:
         cuts[c.nodes] = max(cuts.get(c.nodes, 0), c.need)
-    last_gain = 0
     sizes_ok = len(row_sizes) == table.rows and len(col_sizes) == table.cols
     for rows, cols in blocks(table.rows, table.cols, side_r=side_r, side_c=side_c, seed=seed):
         if time.monotonic() >= deadline or (max_blocks is not None and st.blocks >= max_blocks):
             break
-        if patience is not None and st.blocks - last_gain >= patience:
+        if patience is not None and st.blocks - st.last_gain >= patience:
             break
         st.blocks += 1
         sub = window_table(table, best, rows, cols)
@@ -170,7 +172,7 @@ def block_search(
                 if cost < best_cost and is_strong(table, merged):
                     best, best_cost = merged, cost
                     st.improved += 1
-                    last_gain = st.blocks
+                    st.last_gain = st.blocks
                     st.history.append(cost)
                     break  # the block's frozen part changed: go on to the next block
             if not found:
