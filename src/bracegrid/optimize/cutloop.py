@@ -4,9 +4,8 @@ Each round solves the relaxation (the model with the cuts found so far), turns i
 stable layout (an upper bound) with the greedy repair, and adds the violated cuts; the
 relaxation's bound is a valid lower bound throughout. When the LP stage leaves a gap, the block
 search (:mod:`bracegrid.optimize.neighbourhood`) improves the incumbent before the rounds. A
-large-neighbourhood search re-optimises
-the incumbent inside row x column windows, and once half the time is gone an exact search pinned
-at the bound may close the gap (docs/optimizer.md).
+large-neighbourhood search re-optimises the incumbent inside row x column windows, and once half
+the time is gone an exact search pinned at the bound may close the gap (docs/optimizer.md).
 """
 
 from __future__ import annotations
