@@ -306,6 +306,7 @@ def _solve_cp(
         lns_rounds=4,
         probe_after=0.5,
         lp_share=0.5,
+        block_until=0.85,
     )
     if result.additions is None and k > 0:
         late = constructive_redundant(table, None, k, deadline=time.monotonic())
