@@ -37,8 +37,8 @@ from bracegrid.model import (
 )
 from bracegrid.optimize import SolveOptions, SolveStatus, optimize_frame
 from bracegrid.optimize.general import candidates
-from bracegrid.optimize.loadcuts import LoadChecks, meets_rules, no_good, rule_matrix
-from bracegrid.optimize.rules import RuleRow, rule_rows
+from bracegrid.optimize.loadcuts import LoadChecks, no_good, rule_matrix
+from bracegrid.optimize.rules import RuleRow, meets_rules, rule_rows
 
 STRONG = StrengthCatalogue(
     brace=MemberStrength(tension_kn=20.0, compression_kn=12.0, ea_kn=8e4),

@@ -63,7 +63,7 @@ from bracegrid.optimize.capacity import (
     rounded_cut,
 )
 from bracegrid.optimize.cutmodel import configure
-from bracegrid.optimize.rules import RuleRow, rule_reasons, rule_rows
+from bracegrid.optimize.rules import RuleRow, meets_rules, rule_reasons, rule_rows
 from bracegrid.optimize.separation import violated_cuts
 
 Report = Callable[[str, int | None, int], None]
@@ -715,13 +715,7 @@ def _flags(cands: Sequence[Candidate], start: Sequence[Member]) -> list[bool] | 
 
 def _meets_rows(rows: Sequence[RuleRow], cands: Sequence[Candidate], chosen: Sequence[bool]) -> bool:
     """Whether a layout meets every spreading rule row."""
-    for r in rows:
-        bays = set(r.bays)
-        inside = [(c.row, c.col) for c, on in zip(cands, chosen, strict=True) if on and (c.row, c.col) in bays]
-        count = len(set(inside)) if r.braced_bays else len(inside)
-        if (r.at_least is not None and count < r.at_least) or (r.at_most is not None and count > r.at_most):
-            return False
-    return True
+    return meets_rules((), [c.member for c, on in zip(cands, chosen, strict=True) if on], rows)
 
 
 def _fullest(pf: PlasticFrame, rows: Sequence[RuleRow], k: int, table: BayTable) -> list[bool] | None:

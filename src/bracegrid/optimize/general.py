@@ -49,9 +49,9 @@ from bracegrid.model import (
 from bracegrid.optimize.bays import bay_table
 from bracegrid.optimize.benders import strength_reasons
 from bracegrid.optimize.capacity import has_capacities
-from bracegrid.optimize.loadcuts import LoadChecks, Row, meets_rules, no_good, rule_matrix
+from bracegrid.optimize.loadcuts import LoadChecks, Row, no_good, rule_matrix
 from bracegrid.optimize.results import FrameSolution, ProgressEvent, SolveMethod, SolveOptions, SolveStatus
-from bracegrid.optimize.rules import rule_reasons, rule_rows
+from bracegrid.optimize.rules import meets_rules, rule_reasons, rule_rows
 
 Progress = Callable[[ProgressEvent], None]
 #: A candidate counts as stretched by a floating-point flex (from the tie LP) when its elongation

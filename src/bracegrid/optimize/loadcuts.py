@@ -94,18 +94,6 @@ def rule_matrix(kept: Sequence[Member], members: Sequence[Member], rows: Sequenc
     return out, helpers
 
 
-def meets_rules(kept: Sequence[Member], added: Sequence[Member], rows: Sequence[RuleRow]) -> bool:
-    """Whether a layout (kept plus added members) meets every rule row."""
-    layout = [*kept, *added]
-    for row in rows:
-        bays = set(row.bays)
-        inside = [m.bay for m in layout if m.bay in bays]
-        count = len(set(inside)) if row.braced_bays else len(inside)
-        if (row.at_least is not None and count < row.at_least) or (row.at_most is not None and count > row.at_most):
-            return False
-    return True
-
-
 class LoadChecks:
     """The plastic and elastic checks of a general frame's layouts, and the cuts they give.
 

@@ -7,9 +7,10 @@ master model adds; :func:`rule_reasons` finds the rows no layout can meet before
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
-from bracegrid.model import Frame
+from bracegrid.model import Frame, Member
 from bracegrid.optimize.bays import BayTable
 
 
@@ -123,3 +124,15 @@ def rule_reasons(frame: Frame, table: BayTable, rows: list[RuleRow]) -> list[str
             f"but max_members_per_column = {cap} allows at most {e * cap} there; raise one of them"
         )
     return out
+
+
+def meets_rules(kept: Sequence[Member], added: Sequence[Member], rows: Sequence[RuleRow]) -> bool:
+    """Whether a layout (kept plus added members) meets every rule row."""
+    layout = [*kept, *added]
+    for row in rows:
+        bays = set(row.bays)
+        inside = [m.bay for m in layout if m.bay in bays]
+        count = len(set(inside)) if row.braced_bays else len(inside)
+        if (row.at_least is not None and count < row.at_least) or (row.at_most is not None and count > row.at_most):
+            return False
+    return True
