@@ -12,6 +12,7 @@ import itertools
 
 import pytest
 
+from bracegrid.errors import InfeasibleError
 from bracegrid.model import (
     CostCatalogue,
     CostRate,
@@ -97,3 +98,44 @@ def test_repair_on_a_general_frame_matches_enumeration() -> None:
     added = [m for m in done.members if m not in rest]
     cents = sum(COSTS.member_price_cents(m.kind, frame.cut_length_mm(m.row, m.col)) for m in added)
     assert cents == _cheapest(frame, rest)
+
+
+def _cheapest_surviving(frame: Frame, k: int) -> int | None:
+    """Cheapest layout that stays stable after any k member losses, by enumeration and the reference."""
+    bays = [(i, j) for i in range(1, frame.rows + 1) for j in range(1, frame.cols + 1) if (i, j) not in frame.absent]
+    slots = [(i, j, d) for i, j in bays for d in Diagonal]
+    best: int | None = None
+    for pick in itertools.product((None, MemberKind.BRACE, MemberKind.TIE), repeat=len(slots)):
+        layout = [Member(i, j, kind, d) for (i, j, d), kind in zip(slots, pick, strict=True) if kind is not None]
+        cents = sum(COSTS.member_price_cents(m.kind, frame.cut_length_mm(m.row, m.col)) for m in layout)
+        if best is not None and cents >= best:
+            continue
+        if not general_physically_rigid(frame, layout):
+            continue
+        survives = all(
+            general_physically_rigid(frame, [m for n, m in enumerate(layout) if n not in gone])
+            for size in range(1, k + 1)
+            for gone in itertools.combinations(range(len(layout)), size)
+        )
+        if survives:
+            best = cents
+    return best
+
+
+@pytest.mark.parametrize("frame", [CASES[0], CASES[1], CASES[2]], ids=lambda f: f.name)
+def test_redundant_optimum_matches_enumeration(frame: Frame) -> None:
+    """Redundancy 1 on general frames (before: refused as not built): the cheapest layout that survives
+    the loss of any one member, by the independent reference, is what the optimizer proves; where no
+    layout survives, the optimizer says so."""
+    best = _cheapest_surviving(frame, 1)
+    options = SolveOptions(time_limit=30, workers=2, redundancy=1)
+    if best is None:
+        with pytest.raises(InfeasibleError):
+            optimize_frame(frame, COSTS, options=options)
+        return
+    sol = optimize_frame(frame, COSTS, options=options)
+    assert sol.status is SolveStatus.OPTIMAL
+    assert round(sol.cost * 100) == best
+    assert sol.redundancy == 1
+    for gone in range(len(sol.members)):
+        assert general_physically_rigid(frame, [m for n, m in enumerate(sol.members) if n != gone])

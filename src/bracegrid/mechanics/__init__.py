@@ -1,6 +1,7 @@
 """The mechanics stage: the real bar framework, direct stiffness, tension-only ties, member forces."""
 
 from bracegrid.mechanics.checking import (
+    GENERAL_REDUNDANCY_CAP,
     check_any,
     check_frame_any,
     critical_any,
@@ -28,6 +29,7 @@ from bracegrid.mechanics.rigidity import Reduced, Rigidity, exact_rigidity, memb
 from bracegrid.mechanics.tension import Equilibrium, exact_step, solve_tension_only
 
 __all__ = [
+    "GENERAL_REDUNDANCY_CAP",
     "MODEL_LIMITS",
     "BarFramework",
     "BarKind",

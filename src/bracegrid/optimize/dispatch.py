@@ -187,11 +187,12 @@ def _optimize_general(
 ) -> FrameSolution:
     """A general frame: the complete grid's optimum (same open bays) as bound and first try, then mechanism cuts.
 
-    The complete grid's optimum is searched for stability and rules only: a layout that carries the
-    loads on the general frame is stable and within the rules on the complete grid, so its bound
-    holds; the complete grid's elastic exclusions would not (the elastic check is not monotone).
+    The complete grid's optimum is searched for stability, redundancy and rules only: a layout that
+    carries the loads on the general frame, or survives k losses there, is stable, survives them and
+    keeps the rules on the complete grid (bars only add constraints), so its bound holds; the complete
+    grid's elastic exclusions would not (the elastic check is not monotone).
     """
-    share = dataclasses.replace(options, time_limit=0.3 * options.time_limit, redundancy=0)
+    share = dataclasses.replace(options, time_limit=0.3 * options.time_limit)
     try:
         floor = optimize_frame(complete_version(frame), costs, options=share)
     except (InfeasibleError, SolverLimitError):

@@ -24,6 +24,7 @@ candidate the current flex stretches, until rigid) gives a layout, with the last
 from __future__ import annotations
 
 import dataclasses
+import itertools
 import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -35,7 +36,16 @@ from scipy.optimize import Bounds, LinearConstraint, milp
 from bracegrid.analysis import flex_words
 from bracegrid.analysis.digraph import arc_strong_components, build_arcs
 from bracegrid.errors import InfeasibleError, SolverLimitError
-from bracegrid.mechanics import Reduced, Rigidity, check_any, exact_rigidity, flex_of, member_rank
+from bracegrid.mechanics import (
+    GENERAL_REDUNDANCY_CAP,
+    Reduced,
+    Rigidity,
+    check_any,
+    exact_rigidity,
+    flex_of,
+    member_rank,
+    redundancy_any,
+)
 from bracegrid.model import (
     CostCatalogue,
     Diagonal,
@@ -120,15 +130,63 @@ def _elongations(
 
 
 def _stretched(e: Sequence[float], cands: Candidates, *, exact: bool) -> list[int]:
+    return _stretched_members(e, cands.members, exact=exact)
+
+
+def _stretched_members(e: Sequence[float], members: Sequence[Member], *, exact: bool) -> list[int]:
+    """Indices of the members a flex stretches (a brace with nonzero elongation, a tie with positive)."""
     if exact:
-        return [k for k, m in enumerate(cands.members) if (e[k] != 0 if m.kind is MemberKind.BRACE else e[k] > 0)]
+        return [k for k, m in enumerate(members) if (e[k] != 0 if m.kind is MemberKind.BRACE else e[k] > 0)]
     scale = max((abs(float(v)) for v in e), default=0.0)
     tol = STRETCH_SHARE * scale
     return [
         k
-        for k, m in enumerate(cands.members)
+        for k, m in enumerate(members)
         if (abs(float(e[k])) > tol if m.kind is MemberKind.BRACE else float(e[k]) > tol)
     ]
+
+
+def loss_cuts(
+    frame: Frame, kept: Sequence[Member], trial: Sequence[int], cands: Candidates, k: int, *, most: int = 8
+) -> list[tuple[list[int], int]]:
+    """Cuts from the member losses (up to ``k`` at once) that leave the layout a mechanism: (candidates, need).
+
+    If losing a set of members leaves a flex u, every layout that survives any k losses holds at
+    least k + 1 members that u stretches: with k or fewer, losing exactly those leaves u a flex of
+    the rest (u keeps every grid bar and stretches no other member). Kept members u stretches count
+    towards the k + 1, so the candidates u stretches must number at least k + 1 less those. Floating
+    flexes (the tie LP) count a member as stretched above a threshold, which can only weaken the cut.
+
+    Raises:
+        InfeasibleError: When u stretches no candidate and too few kept members: no layout survives.
+    """
+    layout = tuple(kept) + tuple(cands.members[i] for i in trial)
+    out: list[tuple[list[int], int]] = []
+    for size in range(1, k + 1):
+        for gone in itertools.combinations(range(len(layout)), size):
+            rest = [m for i, m in enumerate(layout) if i not in gone]
+            result = exact_rigidity(frame, rest)
+            if result.rigid:
+                continue
+            assert result.motion is not None
+            for z in [result.motion, *result.others]:
+                hit = _stretched(
+                    _elongations(result.reduced, frame, z, cands.members), cands, exact=result.exact_motion
+                )
+                held = _stretched_members(_elongations(result.reduced, frame, z, kept), kept, exact=result.exact_motion)
+                need = k + 1 - len(held)
+                if need <= 0:
+                    continue
+                if len(hit) < need:
+                    lost = ", ".join(layout[i].label for i in gone)
+                    raise InfeasibleError([f"frame {frame.name!r}: no layout survives {k} member loss"
+                                           f"{'es' if k > 1 else ''}: after losing {lost} too few diagonals "
+                                           "could stop the mechanism that is left; clear more bays or allow "
+                                           "more member kinds"])  # fmt: skip
+                out.append((hit, need))
+            if len(out) >= most:
+                return out
+    return out
 
 
 def mechanism_cuts(result: Rigidity, frame: Frame, cands: Candidates) -> list[list[int]]:
@@ -257,6 +315,26 @@ def _greedy(frame: Frame, kept: tuple[Member, ...], cands: Candidates, start: Se
     return None
 
 
+def _greedy_losses(
+    frame: Frame, kept: tuple[Member, ...], cands: Candidates, start: Sequence[int], k: int, deadline: float
+) -> list[int] | None:
+    """Add the cheapest candidates each loss cut asks for until the layout survives any k losses."""
+    chosen = list(start)
+    used = {cands.slot[i] for i in chosen}
+    while time.monotonic() < deadline:
+        lost = loss_cuts(frame, kept, chosen, cands, k, most=1)
+        if not lost:
+            return chosen
+        cut, need = lost[0]
+        free = sorted((i for i in cut if cands.slot[i] not in used), key=lambda i: cands.cents[i])
+        if not free:
+            return None
+        for i in free[:need]:
+            chosen.append(i)
+            used.add(cands.slot[i])
+    return None
+
+
 def _infeasible(frame: Frame, kept: tuple[Member, ...], cands: Candidates) -> list[str]:
     """Why even every candidate (a brace where allowed, else a tie) leaves a mechanism."""
     best: dict[int, Member] = {}
@@ -293,7 +371,7 @@ def optimize_general(
     Args:
         frame: The frame (outline, missing grid bars); its members are kept.
         costs: Prices.
-        options: Time limit and allowed kinds (redundancy must be 0 here).
+        options: Time limit, allowed kinds and redundancy (at most GENERAL_REDUNDANCY_CAP here).
         on_progress: Called with progress events.
         lower_bound_cents: A proven bound on the added cost (the complete grid's optimum).
         hint: A layout of added members to try first (the complete grid's optimum).
@@ -304,18 +382,19 @@ def optimize_general(
 
     Raises:
         InfeasibleError: No layout makes the frame stable (with the mechanism that stays).
-        InfeasibleError: Also when redundancy is asked (not built for general frames), saying so.
+        InfeasibleError: Also when more redundancy is asked than the exact loss check covers, or when no
+            layout survives the losses asked for, saying why.
         SolverLimitError: No layout within the time limit.
     """
     start = time.monotonic()
     deadline = start + max(0.0, options.time_limit)
     allow = frame.allow if options.allow is None else options.allow
     k = frame.redundancy if options.redundancy is None else options.redundancy
-    if k:
+    if not 0 <= k <= GENERAL_REDUNDANCY_CAP:
         raise InfeasibleError(
             [
                 f"frame {frame.name!r}: redundancy {k} on a frame with missing grid bars or absent bays is not "
-                "built yet (docs/general-frames.md); ask for redundancy 0 for this frame"
+                f"built (at most {GENERAL_REDUNDANCY_CAP}: every set of losses is checked exactly); ask for less"
             ]
         )
     kept = tuple(frame.members)
@@ -363,6 +442,12 @@ def optimize_general(
         result = exact_rigidity(frame, layout)
         cost = sum(cands.cents[i] for i in trial)
         adequate = result.rigid and meets_rules(kept, layout[len(kept) :], rows)
+        if adequate and k:
+            lost = loss_cuts(frame, kept, trial, cands, k)
+            for cut, need in lost:
+                counts[len(cuts)] = need
+                cuts.append(cut)
+            adequate = not lost
         if adequate and checks is not None:
             more = checks.capacity_cuts(trial)
             if more:  # valid for every layout that carries the cases
@@ -413,6 +498,8 @@ def optimize_general(
         trial = list(master.chosen)
     if answer is None and plastic_only is None:
         answer = _greedy(frame, kept, cands, hinted)
+        if answer is not None and k:
+            answer = _greedy_losses(frame, kept, cands, answer, k, deadline + 0.1 * options.time_limit)
         if answer is not None and checks is not None:
             answer = checks.repair(answer, cands.cents, cands.slot, deadline + 0.1 * options.time_limit)
         if answer is not None and not meets_rules(kept, [cands.members[i] for i in answer], rows):
@@ -426,7 +513,7 @@ def optimize_general(
     new_members = tuple(sorted((cands.members[i] for i in answer), key=lambda m: m.sort_key))
     members = kept + new_members
     verdict = check_any(frame, members)
-    if not verdict.stable:
+    if not verdict.stable or (k and redundancy_any(frame, members, at_most=k) < k):
         msg = f"internal error: the layout for frame {frame.name!r} fails the exact re-check; this is a bracegrid bug"
         raise RuntimeError(msg)
     added = sum(cands.cents[i] for i in answer)
@@ -444,6 +531,7 @@ def optimize_general(
         seconds=round(time.monotonic() - start, 3),
         verdict=verdict,
         method=SolveMethod.MECHANISM_CUTS if checks is None and not rows else SolveMethod.GENERAL_STRENGTH,
+        redundancy=k,
         rounds=rounds,
         cuts=len(cuts) + len(extra),
     )
