@@ -1,0 +1,190 @@
+"""The readers of load cases, general-frame fields and [robustness] cite the right line.
+
+They used to find their lines by scanning the text with regular expressions (a ``[[frame.load]]``
+or ``[robustness...]`` line): a quoted or spaced header (``[[ frame . "load" ]]``) got no line, a
+multi-line string holding a header-like line got the string's line (or shifted the frames), an
+inline array of tables (``load = [{...}]``) and the ``absent`` / ``held_edges`` fields got none.
+Now every reader takes its lines from tomlkit's parser (src/bracegrid/io/positions.py); each test
+below failed with the scans (but the one marked as a guard, where the scan was right). The expected line is the one marked ``# <- here`` in the text shown.
+"""
+
+from __future__ import annotations
+
+import io
+from pathlib import Path
+
+import pytest
+
+from bracegrid.cli import main
+from bracegrid.errors import InputError
+from bracegrid.io import parse_project
+from tests.common import project_head
+
+HEAD = project_head("p")  # lines 1-8
+FRAME = '[[frame]]\nname = "f"\nwidths = [3.0, 3.0]\nheights = [2.0, 2.0]\nsupports = "base"\n'
+BAD_LOAD = 'name = ""\nhorizontal = [1.0, 1.0]\n'
+
+
+def _here(text: str, nth: int = 1) -> int:
+    """The line (from 1) of the ``nth`` line marked ``# <- here``."""
+    marked = [k for k, row in enumerate(text.split("\n"), start=1) if row.endswith("# <- here")]
+    return marked[nth - 1]
+
+
+def _problems(text: str) -> list[str]:
+    with pytest.raises(InputError) as info:
+        parse_project(text, source="p.toml")
+    return list(info.value.problems)
+
+
+def _cited(problems: list[str], part: str) -> list[str]:
+    """The problems that hold ``part`` (the field and what is wrong)."""
+    found = [p for p in problems if part in p]
+    assert found, f"no problem holds {part!r}: {problems}"
+    return found
+
+
+# --------------------------------------------------------------------------- [[frame.load]]
+
+
+def test_a_spaced_and_quoted_load_header_gets_its_line() -> None:
+    text = HEAD + FRAME + '[[ frame . "load" ]]  # <- here\n' + BAD_LOAD
+    (got,) = _cited(_problems(text), "frame 'f' load #1.name: expected a non-empty string")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_a_load_header_inside_a_multiline_string_is_not_a_table() -> None:
+    text = HEAD + FRAME.replace('name = "f"', 'name = "f"\nnote = """\n[[frame.load]]\n"""') + (
+        "# [[frame.load]] is written below\n[[frame.load]]  # <- here\n" + BAD_LOAD
+    )
+    (got,) = _cited(_problems(text), "frame 'f' load #1.name: expected a non-empty string")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_a_frame_header_inside_a_string_does_not_shift_the_loads_of_later_frames() -> None:
+    first = FRAME.replace('name = "f"', "name = '''g\n[[frame]]\n'''")  # a frame named "g\n[[frame]]\n"
+    text = HEAD + first + FRAME + "[[frame.load]]  # <- here\n" + BAD_LOAD
+    (got,) = _cited(_problems(text), "frame 'f' load #1.name: expected a non-empty string")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_inline_load_cases_get_the_line_of_their_key() -> None:
+    text = HEAD + FRAME + 'load = [{ name = "", horizontal = [1.0, 1.0] }]  # <- here\n'
+    (got,) = _cited(_problems(text), "frame 'f' load #1.name: expected a non-empty string")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_loads_of_the_second_frame_get_their_own_lines() -> None:
+    # Here the scan was right (plain headers): a guard that the parser's lines keep it so.
+    second = FRAME.replace('name = "f"', 'name = "g"')
+    text = HEAD + FRAME + "[[frame.load]]\n" + 'name = "a"\nhorizontal = [1.0, 1.0]\n' + second
+    text += '[[frame.load]]\nname = "b"\nhorizontal = [1.0, 1.0]\n[[frame.load]]  # <- here\n' + BAD_LOAD
+    (got,) = _cited(_problems(text), "frame 'g' load #2.name: expected a non-empty string")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_held_edges_get_the_line_of_their_field() -> None:
+    text = HEAD + FRAME.replace('"base"', '"free"') + 'held_edges = ["left", "top side"]  # <- here\n'
+    (got,) = _cited(_problems(text), "frame 'f'.held_edges[2]: 'top side' is not one of")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+# --------------------------------------------------------------------------- general frames
+
+
+def test_a_quoted_missing_header_gets_its_line() -> None:
+    text = HEAD + FRAME + '[[frame."missing"]]  # <- here\nbar = "rail"\nline = 1\nspan = 1\n'
+    (got,) = _cited(_problems(text), "frame 'f' missing #1.bar: expected \"ledger\" or \"standard\"")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_a_missing_header_inside_a_multiline_string_is_not_a_table() -> None:
+    fake = FRAME.replace('name = "f"', "name = \"f\"\nnote = '''\n  [[frame.missing]]\n'''")
+    text = HEAD + fake + '[[frame.missing]]\nbar = "ledger"\nline = 1\nspan = 1\n'
+    text += '[[frame.missing]]  # <- here\nbar = "ledger"\nline = 9\nspan = 1\n'
+    (got,) = _cited(_problems(text), "frame 'f' missing #2: ledger9c1 is outside the frame")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_inline_missing_bars_get_the_line_of_their_key() -> None:
+    text = HEAD + FRAME + 'missing = [{ bar = "ledger", line = 1, span = 7 }]  # <- here\n'
+    (got,) = _cited(_problems(text), "frame 'f' missing #1: ledger1c7 is outside the frame")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_absent_bays_get_the_line_of_their_field() -> None:
+    text = HEAD + FRAME + "absent = [[1, 1], [5, 1]]  # <- here\n"
+    (got,) = _cited(_problems(text), "frame 'f'.absent[2]: bay r5c1 is outside the frame")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_absent_bays_of_the_second_frame_get_their_own_line() -> None:
+    second = FRAME.replace('name = "f"', 'name = "g"')
+    text = HEAD + FRAME + "absent = [[1, 1]]\n" + second + "absent = [[1, 1], [1, 2], [2, 1], [2, 2]]  # <- here\n"
+    (got,) = _cited(_problems(text), "frame 'g'.absent: every bay is absent")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_inline_members_of_the_second_frame_get_their_own_line() -> None:
+    member = 'member = [{ row = 1, col = 9, kind = "brace", diagonal = "rising" }]'
+    second = FRAME.replace('name = "f"', 'name = "g"')
+    text = HEAD + FRAME + member.replace("9", "1") + "\n" + second + member + "  # <- here\n"
+    (got,) = _cited(_problems(text), "frame 'g' member #1: col 9 is outside the frame")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+# --------------------------------------------------------------------------- [robustness]
+
+
+@pytest.mark.parametrize(
+    "table",
+    [
+        '["robustness".loss_likelihood]  # <- here\ntie = -1\n',
+        "[ robustness . 'loss_likelihood' ]  # <- here\ntie = -1\n",
+        'robustness = { loss_likelihood = { tie = -1 } }  # <- here\n',
+        "robustness.loss_likelihood.tie = -1  # <- here\n",
+        "[robustness]\nloss_likelihood = { tie = -1 }  # <- here\n",
+    ],
+)
+def test_robustness_tables_written_any_way_get_their_line(table: str) -> None:
+    text = table + HEAD + FRAME if not table.startswith("[") else HEAD + table + FRAME
+    (got,) = _cited(_problems(text), "[robustness.loss_likelihood].tie: expected a number 0 or above")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_a_robustness_header_inside_a_multiline_string_is_not_the_table() -> None:
+    text = HEAD.replace('name = "p"', 'name = """p\n[robustness.loss_likelihood]\n"""')
+    text += "[robustness.loss_likelihood]  # <- here\ntie = -1\n" + FRAME
+    (got,) = _cited(_problems(text), "[robustness.loss_likelihood].tie: expected a number 0 or above")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+def test_an_unknown_robustness_field_under_a_sub_table_only_gets_a_line() -> None:
+    text = HEAD + "[robustness.loss_likelihood]  # <- here\ntie = 2.0\n[robustness.lost]\nx = 1\n" + FRAME
+    (got,) = _cited(_problems(text), "[robustness]: unknown field 'lost'")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
+# --------------------------------------------------------------------------- the command line
+
+
+def test_the_cli_cites_file_line_and_field(tmp_path: Path) -> None:
+    text = (
+        HEAD
+        + FRAME
+        + "absent = [[5, 1]]  # <- here\n"
+        + '[[ frame . "load" ]]  # <- here\n'
+        + BAD_LOAD
+        + "[[frame.'missing']]  # <- here\nbar = \"ledger\"\nline = 9\nspan = 1\n"
+    )
+    path = tmp_path / "p.toml"
+    path.write_text(text, encoding="utf-8")
+    out, err = io.StringIO(), io.StringIO()
+    code = main(["check", str(path)], out=out, err=err)
+    assert code == 2
+    message = err.getvalue()
+    assert str(path) in message
+    assert f"line {_here(text, 1)}, frame 'f'.absent[1]: bay r5c1 is outside the frame" in message
+    assert f"line {_here(text, 2)}, frame 'f' load #1.name: expected a non-empty string" in message
+    assert f"line {_here(text, 3)}, frame 'f' missing #1: ledger9c1 is outside the frame" in message
+    assert "Traceback" not in message
