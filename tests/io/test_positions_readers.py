@@ -5,12 +5,13 @@ or ``[robustness...]`` line): a quoted or spaced header (``[[ frame . "load" ]]`
 multi-line string holding a header-like line got the string's line (or shifted the frames), an
 inline array of tables (``load = [{...}]``) and the ``absent`` / ``held_edges`` fields got none.
 Now every reader takes its lines from tomlkit's parser (src/bracegrid/io/positions.py); each test
-below failed with the scans (but the one marked as a guard, where the scan was right). The expected line is the one marked ``# <- here`` in the text shown.
-"""
+below failed with the scans, but the one marked as a guard (where the scan was right). The
+expected line is the one marked ``# <- here`` in the text shown."""
 
 from __future__ import annotations
 
 import io
+import random
 from pathlib import Path
 
 import pytest
@@ -18,6 +19,7 @@ import pytest
 from bracegrid.cli import main
 from bracegrid.errors import InputError
 from bracegrid.io import parse_project
+from bracegrid.io.positions import locate
 from tests.common import project_head
 
 HEAD = project_head("p")  # lines 1-8
@@ -54,8 +56,10 @@ def test_a_spaced_and_quoted_load_header_gets_its_line() -> None:
 
 
 def test_a_load_header_inside_a_multiline_string_is_not_a_table() -> None:
-    text = HEAD + FRAME.replace('name = "f"', 'name = "f"\nnote = """\n[[frame.load]]\n"""') + (
-        "# [[frame.load]] is written below\n[[frame.load]]  # <- here\n" + BAD_LOAD
+    text = (
+        HEAD
+        + FRAME.replace('name = "f"', 'name = "f"\nnote = """\n[[frame.load]]\n"""')
+        + ("# [[frame.load]] is written below\n[[frame.load]]  # <- here\n" + BAD_LOAD)
     )
     (got,) = _cited(_problems(text), "frame 'f' load #1.name: expected a non-empty string")
     assert got.startswith(f"line {_here(text)}, ")
@@ -83,6 +87,13 @@ def test_loads_of_the_second_frame_get_their_own_lines() -> None:
     assert got.startswith(f"line {_here(text)}, ")
 
 
+def test_a_repeated_load_case_name_gets_the_line_of_the_second_case() -> None:
+    case = '[[frame.load]]{}\nname = "wind"\nhorizontal = [1.0, 1.0]\n'
+    text = HEAD + FRAME + case.format("") + case.format("  # <- here")
+    (got,) = _cited(_problems(text), "frame 'f'.load: two load cases are named 'wind'")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
 def test_held_edges_get_the_line_of_their_field() -> None:
     text = HEAD + FRAME.replace('"base"', '"free"') + 'held_edges = ["left", "top side"]  # <- here\n'
     (got,) = _cited(_problems(text), "frame 'f'.held_edges[2]: 'top side' is not one of")
@@ -94,7 +105,7 @@ def test_held_edges_get_the_line_of_their_field() -> None:
 
 def test_a_quoted_missing_header_gets_its_line() -> None:
     text = HEAD + FRAME + '[[frame."missing"]]  # <- here\nbar = "rail"\nline = 1\nspan = 1\n'
-    (got,) = _cited(_problems(text), "frame 'f' missing #1.bar: expected \"ledger\" or \"standard\"")
+    (got,) = _cited(_problems(text), 'frame \'f\' missing #1.bar: expected "ledger" or "standard"')
     assert got.startswith(f"line {_here(text)}, ")
 
 
@@ -125,6 +136,14 @@ def test_absent_bays_of_the_second_frame_get_their_own_line() -> None:
     assert got.startswith(f"line {_here(text)}, ")
 
 
+def test_a_member_in_an_absent_bay_gets_the_line_of_its_frame() -> None:
+    second = FRAME.replace("[[frame]]", "[[frame]]  # <- here").replace('name = "f"', 'name = "g"')
+    text = HEAD + FRAME + second
+    text += 'absent = [[1, 1]]\n[[frame.member]]\nrow = 1\ncol = 1\nkind = "brace"\ndiagonal = "rising"\n'
+    (got,) = _cited(_problems(text), "frame 'g' member r1c1:rising: bay r1c1 is absent")
+    assert got.startswith(f"line {_here(text)}, ")
+
+
 def test_inline_members_of_the_second_frame_get_their_own_line() -> None:
     member = 'member = [{ row = 1, col = 9, kind = "brace", diagonal = "rising" }]'
     second = FRAME.replace('name = "f"', 'name = "g"')
@@ -141,7 +160,7 @@ def test_inline_members_of_the_second_frame_get_their_own_line() -> None:
     [
         '["robustness".loss_likelihood]  # <- here\ntie = -1\n',
         "[ robustness . 'loss_likelihood' ]  # <- here\ntie = -1\n",
-        'robustness = { loss_likelihood = { tie = -1 } }  # <- here\n',
+        "robustness = { loss_likelihood = { tie = -1 } }  # <- here\n",
         "robustness.loss_likelihood.tie = -1  # <- here\n",
         "[robustness]\nloss_likelihood = { tie = -1 }  # <- here\n",
     ],
@@ -188,3 +207,49 @@ def test_the_cli_cites_file_line_and_field(tmp_path: Path) -> None:
     assert f"line {_here(text, 2)}, frame 'f' load #1.name: expected a non-empty string" in message
     assert f"line {_here(text, 3)}, frame 'f' missing #1: ledger9c1 is outside the frame" in message
     assert "Traceback" not in message
+
+
+# --------------------------------------------------------------------------- positions, checked wholesale
+
+
+def test_element_lines_match_where_a_generated_file_put_them() -> None:
+    # Random files of plain and spaced/quoted headers, inline arrays, comments with brackets and
+    # multi-line strings holding header-like lines; the generator knows where it wrote each table,
+    # so the lines the parser reports are checked against the truth, not against another scan.
+    rng = random.Random(20261202)
+    headers = {"load": ['[[frame.load]]', '[[ frame . "load" ]]', "[['frame'.load]]"],
+               "missing": ["[[frame.missing]]", '[[frame."missing"]]', "[[ frame.missing ]]"]}  # fmt: skip
+    for _ in range(200):
+        rows: list[str] = ["# [[frame]] and [[frame.load]] in a comment", "top = 1"]
+        expect: list[tuple[int, str, int, int]] = []  # (frame, sub, k, line)
+        frame_lines: list[int] = []
+        absent_lines: list[int | None] = []
+        for index in range(rng.randint(1, 4)):
+            rows.append(rng.choice(["[[frame]]", '[["frame"]]', "[[ frame ]]  # [[frame.load]]"]))
+            frame_lines.append(len(rows))
+            rows.append(f'name = "f{index}"')
+            if rng.random() < 0.5:
+                rows += ["note = '''", "[[frame.load]]", "[[frame]]", "'''"]
+            absent_lines.append(None)
+            if rng.random() < 0.5:
+                rows.append("absent = [[1, 1]]  # [[frame.missing]]")
+                absent_lines[-1] = len(rows)
+            counts = {sub: rng.randint(0, 3) for sub in rng.sample(["load", "missing"], 2)}
+            inline = {sub for sub, count in counts.items() if count and rng.random() < 0.3}
+            for sub in inline:  # written inline (before any sub-table): every item gets the key's line
+                rows.append(f"{sub} = [" + ", ".join("{ x = 1 }" for _ in range(counts[sub])) + "]")
+                expect += [(index, sub, k, len(rows)) for k in range(counts[sub])]
+            for sub, count in counts.items():
+                if sub in inline:
+                    continue
+                for k in range(count):
+                    rows.append(rng.choice(headers[sub]))
+                    expect.append((index, sub, k, len(rows)))
+                    rows += ["x = 1", ""] if rng.random() < 0.5 else ['s = """', "[[frame]]", '"""']
+        found = locate("\n".join(rows) + "\n")
+        for index, line in enumerate(frame_lines):
+            assert found.element_line(("frame",), index) == line
+            assert found.element_key(("frame",), index, "absent") == absent_lines[index]
+        for index, sub, k, line in expect:
+            assert found.element_item(("frame",), index, sub, k) == line
+        assert found.element_line(("frame",), len(frame_lines)) is None
