@@ -152,6 +152,17 @@ def test_inline_members_of_the_second_frame_get_their_own_line() -> None:
     assert got.startswith(f"line {_here(text)}, ")
 
 
+def test_frames_written_inline_get_the_line_of_their_key() -> None:
+    frames = 'frame = [{ name = "f", widths = [3.0], heights = [-2.0] },  # <- here\n'
+    frames += '         { name = "g", widths = [3.0], heights = [2.0], held_edges = ["up"] }]\n'
+    text = frames + HEAD
+    problems = _problems(text)
+    (heights,) = _cited(problems, "frame 'f'.heights[1]: size must be positive")
+    (held,) = _cited(problems, "frame 'g'.held_edges[1]: 'up' is not one of")
+    assert heights.startswith(f"line {_here(text)}, ")
+    assert held.startswith(f"line {_here(text)}, ")
+
+
 # --------------------------------------------------------------------------- [robustness]
 
 

@@ -76,9 +76,22 @@ class Positions:
         return elements[index] if index < len(elements) else None
 
     def element_line(self, path: Path, index: int) -> int | None:
-        """The line of the ``index``-th (from 0) ``[[path]]`` header, or None."""
+        """The line of the ``index``-th (from 0) ``[[path]]`` header, or None.
+
+        An array of tables written inline (``frame = [{...}, {...}]``) has no headers: each of its
+        elements gets the line of that key (the parser notes no line for each item of an inline array).
+
+        Example:
+            >>> p = locate("frame = [{}, {}]\\n")
+            >>> p.element_line(("frame",), 1), p.element_line(("other",), 0)
+            (1, None)
+        """
         header = self.element(path, index)
-        return None if header is None else self.headers[header][2]
+        if header is not None:
+            return self.headers[header][2]
+        if path and not any(where == path and aot for where, aot, _ in self.headers):
+            return self.keys.get((path[:-1], path[-1:]))
+        return None
 
     def element_key(self, path: Path, index: int, key: str) -> int | None:
         """The line of ``key = ...`` in the ``index``-th ``[[path]]`` table itself (not its sub-tables).

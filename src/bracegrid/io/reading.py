@@ -78,17 +78,15 @@ MAX_NESTING = 16
 class _Lines:
     """Line numbers of the file's tables and fields, from tomlkit's parser (:mod:`bracegrid.io.positions`)."""
 
-    frames: list[int] = field(default_factory=list)
     found: Positions = field(default_factory=Positions)
 
     @classmethod
     def scan(cls, text: str) -> _Lines:
-        found = locate(text) if text else Positions()
-        return cls(found.array(("frame",))[0], found)
+        return cls(locate(text) if text else Positions())
 
-    @staticmethod
-    def at(lines: list[int], index: int) -> str:
-        return cite(lines[index] if index < len(lines) else None)
+    def frame(self, index: int) -> str:
+        """``"line N, "`` for the ``index``-th (from 0) ``[[frame]]``, or ``""``."""
+        return cite(self.found.element_line(("frame",), index))
 
     def table(self, *path: str) -> str:
         """``"line N, "`` for a table (:meth:`~bracegrid.io.positions.Positions.within`), or ``""``."""
@@ -385,12 +383,12 @@ def _table_array(col: _Collector, where: str, table: Mapping[str, Any], key: str
 
 
 def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lines) -> Frame | None:
-    where0 = f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}"
+    where0 = f"{lines.frame(index)}[[frame]] #{index + 1}"
     table = col.table(where0, raw)
     if table is None:
         return None
     name = col.text(f"{where0}.name", table.get("name"))
-    where = f"{_Lines.at(lines.frames, index)}frame {name!r}" if name else where0
+    where = f"{lines.frame(index)}frame {name!r}" if name else where0
     col.unknown_keys(where, table, _FRAME_KEYS)
     widths = _read_sizes(col, f"{where}.widths", table.get("widths"), unit)
     heights = _read_sizes(col, f"{where}.heights", table.get("heights"), unit)
@@ -644,7 +642,7 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
             frames.append(got)
             _check_layout_price(col, got, costs)
         elif len(col.problems) == before:  # never drop a frame without saying why
-            col.add(f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}", "could not be read; check its fields")
+            col.add(f"{lines.frame(index)}[[frame]] #{index + 1}", "could not be read; check its fields")
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")
