@@ -36,6 +36,11 @@ class Positions:
     headers: list[tuple[Path, bool, int]] = field(default_factory=list)
     keys: dict[tuple[Path, Path], int] = field(default_factory=dict)
     owners: list[tuple[int, Path, int]] = field(default_factory=list)
+    # Indexes built on first use (the positions are complete by then), so a file of many thousand
+    # ``[[frame.member]]`` tables is answered in time linear in its size, not quadratic.
+    _arrays: dict[tuple[Path, Path], list[list[int]]] = field(default_factory=dict, repr=False, compare=False)
+    _elements: dict[Path, list[int]] | None = field(default=None, repr=False, compare=False)
+    _owned: dict[tuple[int, Path], int] | None = field(default=None, repr=False, compare=False)
 
     def table(self, *path: str) -> int | None:
         """The line of a table's header, or of the key that holds it as an inline table (``costs.tie = {...}``)."""
@@ -72,7 +77,12 @@ class Positions:
 
     def element(self, path: Path, index: int) -> int | None:
         """The position in :attr:`headers` of the ``index``-th (from 0) ``[[path]]`` header, or None."""
-        elements = [k for k, (where, aot, _) in enumerate(self.headers) if where == path and aot]
+        if self._elements is None:
+            self._elements = {}
+            for k, (where, aot, _) in enumerate(self.headers):
+                if aot:
+                    self._elements.setdefault(where, []).append(k)
+        elements = self._elements.get(path, [])
         return elements[index] if index < len(elements) else None
 
     def element_line(self, path: Path, index: int) -> int | None:
@@ -89,7 +99,7 @@ class Positions:
         header = self.element(path, index)
         if header is not None:
             return self.headers[header][2]
-        if path and not any(where == path and aot for where, aot, _ in self.headers):
+        if path and self._elements is not None and path not in self._elements:  # element() built the index
             return self.keys.get((path[:-1], path[-1:]))
         return None
 
@@ -104,7 +114,11 @@ class Positions:
         header = self.element(path, index)
         if header is None:
             return None
-        return next((n for owner, key_path, n in self.owners if owner == header and key_path == (key,)), None)
+        if self._owned is None:
+            self._owned = {}
+            for owner, key_path, n in self.owners:
+                self._owned.setdefault((owner, key_path), n)
+        return self._owned.get((header, (key,)))
 
     def element_item(self, path: Path, index: int, sub: str, k: int) -> int | None:
         """The line of the ``k``-th (from 0) ``[[path.sub]]`` of the ``index``-th ``[[path]]``.
@@ -133,12 +147,16 @@ class Positions:
         ``array(("frame",))`` gives ``[[line of frame 1, line of frame 2, ...]]``;
         ``array(("frame", "member"), ("frame",))`` gives one list of member lines per frame.
         """
+        cached = self._arrays.get((path, parent))
+        if cached is not None:
+            return cached
         groups: list[list[int]] = [[]] if not parent else []
         for where, aot, line in self.headers:
             if parent and where == parent and aot:
                 groups.append([])
             elif where == path and aot and groups:
                 groups[-1].append(line)
+        self._arrays[(path, parent)] = groups
         return groups
 
 
