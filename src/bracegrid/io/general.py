@@ -18,7 +18,8 @@ import re
 from collections.abc import Mapping
 from typing import Any
 
-from bracegrid.io.loads import Problems, frame_table_lines
+from bracegrid.io.loads import Problems
+from bracegrid.io.positions import Positions, cite
 from bracegrid.model import (
     Frame,
     GridBar,
@@ -96,7 +97,7 @@ def _read_absent(col: Problems, where: str, raw: object, frame: Frame) -> set[tu
     return out
 
 
-def add_frame_general(col: Problems, frame: Frame, raw: Mapping[str, Any], *, index: int, text: str) -> Frame:
+def add_frame_general(col: Problems, frame: Frame, raw: Mapping[str, Any], *, index: int, lines: Positions) -> Frame:
     """The frame with its ``absent`` bays and ``[[frame.missing]]`` grid bars read from its table.
 
     Members in an absent bay, or in a bay one of whose corner nodes no grid bar reaches any more,
@@ -107,25 +108,31 @@ def add_frame_general(col: Problems, frame: Frame, raw: Mapping[str, Any], *, in
         frame: The frame as read so far.
         raw: Its table in the document.
         index: Its position among the ``[[frame]]`` tables (for line numbers).
-        text: The file's text (for the line of each ``[[frame.missing]]``).
+        lines: Where the file's tables and fields are (:func:`bracegrid.io.positions.locate`).
 
     Returns:
         The frame with its outline and missing bars (problems are recorded, not raised).
     """
+    frame_line = lines.element_line(("frame",), index)
+    at_frame = cite(frame_line)
+
+    def field_at(key: str) -> str:  # the field's own line, else its frame's
+        line = lines.element_key(("frame",), index, key)
+        return cite(frame_line if line is None else line)
+
     where = f"frame {frame.name!r}"
-    absent = _read_absent(col, f"{where}.absent", raw.get("absent", []), frame)
+    absent = _read_absent(col, f"{field_at('absent')}{where}.absent", raw.get("absent", []), frame)
     if len(absent) == frame.rows * frame.cols:
         absent = set()
     shaped = dataclasses.replace(frame, absent=frozenset(absent))
     raw_missing = raw.get("missing", [])
     if not isinstance(raw_missing, list):
-        col.add(f"{where}.missing", "write each missing grid bar as a [[frame.missing]] table")
+        col.add(f"{field_at('missing')}{where}.missing", "write each missing grid bar as a [[frame.missing]] table")
         raw_missing = []
-    lines = frame_table_lines(text, "missing")
-    at = lines[index] if index < len(lines) else []
     missing: dict[GridBar, str] = {}
     for k, item in enumerate(raw_missing):
-        here = f"{f'line {at[k]}, ' if k < len(at) else ''}{where} missing #{k + 1}"
+        line = lines.element_item(("frame",), index, "missing", k)  # its [[frame.missing]], or `missing = [...]`
+        here = f"{cite(frame_line if line is None else line)}{where} missing #{k + 1}"
         bar = _read_missing(col, here, item, shaped)
         if bar is None:
             continue
@@ -140,14 +147,14 @@ def add_frame_general(col: Problems, frame: Frame, raw: Mapping[str, Any], *, in
     for m in out.members:
         if not bay_present(out, m.row, m.col):
             col.add(
-                f"{where} member {m.label}",
+                f"{at_frame}{where} member {m.label}",
                 f"bay r{m.row}c{m.col} is absent (outside the outline); remove the member or the bay from 'absent'",
             )
             continue
         gone = [f"({p}, {q})" for p, q in bay_corners(m.row, m.col) if (p, q) not in nodes]
         if gone:
             col.add(
-                f"{where} member {m.label}",
+                f"{at_frame}{where} member {m.label}",
                 f"corner node {', '.join(gone)} of bay r{m.row}c{m.col} has no grid bar left (node = (line, line)); "
                 "remove the member or restore a bar at that node",
             )

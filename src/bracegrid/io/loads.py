@@ -9,10 +9,10 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import re
 from collections.abc import Mapping, Sequence
 from typing import Any, Protocol
 
+from bracegrid.io.positions import Positions, cite
 from bracegrid.model import (
     Edge,
     Frame,
@@ -51,22 +51,6 @@ class Problems(Protocol):
 
     def unknown_keys(self, where: str, table: Mapping[str, Any], known: set[str]) -> None:
         """Record every key of ``table`` not in ``known``."""
-
-
-def frame_table_lines(text: str, sub: str) -> list[list[int]]:
-    """Line numbers of the ``[[frame.<sub>]]`` headers, one list per ``[[frame]]`` (for located messages)."""
-    header = re.compile(r"^\s*\[\[\s*(frame(?:\s*\.\s*[A-Za-z_]+)?)\s*\]\]")
-    out: list[list[int]] = []
-    for number, line in enumerate(text.splitlines(), start=1):
-        match = header.match(line)
-        if match is None:
-            continue
-        name = match.group(1).replace(" ", "")
-        if name == "frame":
-            out.append([])
-        elif name == f"frame.{sub}" and out:
-            out[-1].append(number)
-    return out
 
 
 def _kn(col: Problems, where: str, value: object, *, positive: bool, limit: float = MAX_KN) -> float | None:
@@ -261,7 +245,7 @@ def _points(col: Problems, where: str, raw: object, frame: Frame) -> list[tuple[
     return out
 
 
-def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, index: int, text: str) -> Frame:
+def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, index: int, lines: Positions) -> Frame:
     """The frame with its ``held_edges`` and ``[[frame.load]]`` cases read from its table.
 
     Args:
@@ -269,45 +253,60 @@ def add_frame_loads(col: Problems, frame: Frame, raw: Mapping[str, Any], *, inde
         frame: The frame as read so far.
         raw: Its table in the document.
         index: Its position among the ``[[frame]]`` tables (for line numbers).
-        text: The file's text (for the line of each ``[[frame.load]]``).
+        lines: Where the file's tables and fields are (:func:`bracegrid.io.positions.locate`).
 
     Returns:
         The frame with loads and held edges (unchanged where they have problems, which are recorded).
     """
+    frame_line = lines.element_line(("frame",), index)
+
+    def field_at(key: str) -> str:  # the field's own line, else its frame's
+        line = lines.element_key(("frame",), index, key)
+        return cite(frame_line if line is None else line)
+
+    def load_at(k: int) -> str:  # the k-th [[frame.load]] (or the inline `load = [...]`), else the frame
+        line = lines.element_item(("frame",), index, "load", k)
+        return cite(frame_line if line is None else line)
+
     where = f"frame {frame.name!r}"
     held: set[Edge] = set()
     raw_held = raw.get("held_edges", [])
     names = [e.value for e in Edge]
+    at_held = field_at("held_edges")
     if not isinstance(raw_held, list):
-        col.add(f"{where}.held_edges", f'expected a list such as ["left", "right"], got {raw_held!r}')
+        col.add(f"{at_held}{where}.held_edges", f'expected a list such as ["left", "right"], got {raw_held!r}')
     else:
         for k, item in enumerate(raw_held, start=1):
             if isinstance(item, str) and item.strip().lower() in names:
                 held.add(Edge(item.strip().lower()))
             else:
-                col.add(f"{where}.held_edges[{k}]", f"{item!r} is not one of {', '.join(repr(n) for n in names)}")
+                col.add(f"{at_held}{where}.held_edges[{k}]",
+                        f"{item!r} is not one of {', '.join(repr(n) for n in names)}")  # fmt: skip
     if held and frame.supports is Supports.BASE:
-        col.add(f"{where}.held_edges", "a frame on a pinned base is held by its base; held edges are for plan "
-                "grids (supports = \"free\"); remove held_edges or set supports = \"free\"")  # fmt: skip
+        col.add(f"{at_held}{where}.held_edges", "a frame on a pinned base is held by its base; held edges are for "
+                "plan grids (supports = \"free\"); remove held_edges or set supports = \"free\"")  # fmt: skip
     frame = dataclasses.replace(frame, held_edges=frozenset(held))
     cases: list[LoadCase] = []
     raw_loads = raw.get("load", [])
     if not isinstance(raw_loads, list):
-        col.add(f"{where}.load", "write each load case as a [[frame.load]] table")
+        col.add(f"{field_at('load')}{where}.load", "write each load case as a [[frame.load]] table")
         raw_loads = []
-    lines = frame_table_lines(text, "load")
-    at = lines[index] if index < len(lines) else []
+    read_at: list[int] = []  # the position among the load tables of each case read
     for k, item in enumerate(raw_loads):
-        line = f"line {at[k]}, " if k < len(at) else ""
-        got = _read_load(col, f"{line}{where} load #{k + 1}", item, frame)
+        got = _read_load(col, f"{load_at(k)}{where} load #{k + 1}", item, frame)
         if got is not None:
             cases.append(got)
+            read_at.append(k)
     seen = [c.name for c in cases]
     for dup in sorted({n for n in seen if seen.count(n) > 1}):
-        col.add(f"{where}.load", f"two load cases are named {dup!r}; give each a unique name")
+        again = [k for k, n in zip(read_at, seen, strict=True) if n == dup][1]  # the line of the second one
+        col.add(f"{load_at(again)}{where}.load", f"two load cases are named {dup!r}; give each a unique name")
     if cases and frame.supports is Supports.FREE and not held:
-        col.add(f"{where}.load", "the frame has load cases but nothing holds it: set supports = \"base\", or "
-                "list the edges wall lines hold in held_edges (e.g. [\"left\", \"right\", \"bottom\"])")  # fmt: skip
+        col.add(
+            f"{load_at(0)}{where}.load",
+            'the frame has load cases but nothing holds it: set supports = "base", or list the edges wall lines '
+            'hold in held_edges (e.g. ["left", "right", "bottom"])',
+        )
     return dataclasses.replace(frame, loads=tuple(cases))
 
 

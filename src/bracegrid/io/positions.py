@@ -28,10 +28,19 @@ class Positions:
     Attributes:
         headers: ``(path, is_array_table, line)`` for every ``[...]`` / ``[[...]]`` header, in file order.
         keys: ``(table path, key path) -> line`` for every ``key = value`` (the first, if repeated).
+        owners: ``(header, key path, line)`` for every ``key = value`` in file order, ``header`` being
+            the index in ``headers`` of the table it sits in (-1: the top level). Unlike ``keys``, it
+            tells apart the same field in two elements of an array of tables (two ``[[frame]]``).
     """
 
     headers: list[tuple[Path, bool, int]] = field(default_factory=list)
     keys: dict[tuple[Path, Path], int] = field(default_factory=dict)
+    owners: list[tuple[int, Path, int]] = field(default_factory=list)
+    # Indexes built on first use (the positions are complete by then), so a file of many thousand
+    # ``[[frame.member]]`` tables is answered in time linear in its size, not quadratic.
+    _arrays: dict[tuple[Path, Path], list[list[int]]] = field(default_factory=dict, repr=False, compare=False)
+    _elements: dict[Path, list[int]] | None = field(default=None, repr=False, compare=False)
+    _owned: dict[tuple[int, Path], int] | None = field(default=None, repr=False, compare=False)
 
     def table(self, *path: str) -> int | None:
         """The line of a table's header, or of the key that holds it as an inline table (``costs.tie = {...}``)."""
@@ -44,6 +53,90 @@ class Positions:
                 best = line
         return best
 
+    def within(self, *path: str) -> int | None:
+        """The first line that writes into a table: :meth:`table`, else its first sub-table or dotted key.
+
+        ``[robustness.loss_likelihood]`` alone, or ``robustness.loss_likelihood.tie = 3`` at the top
+        level, defines ``[robustness]`` without a header of its own: its line is the first of those;
+        ``robustness = { loss_likelihood = {...} }`` holds it in an inline table: the line of that key.
+
+        Example:
+            >>> p = locate("a.b.c = 1\\n[x.y]\\nz = { w = { v = 1 } }\\n")
+            >>> p.within("a", "b"), p.within("x"), p.within("x", "y", "z", "w"), p.within("q")
+            (1, 2, 3, None)
+        """
+        line = self.table(*path)
+        if line is not None:
+            return line
+        found = [n for where, _, n in self.headers if where[: len(path)] == path]
+        for (table, key), n in self.keys.items():
+            full = table + key
+            if full[: len(path)] == path or path[: len(full)] == full:  # a dotted key inside, or an inline table around
+                found.append(n)
+        return min(found, default=None)
+
+    def element(self, path: Path, index: int) -> int | None:
+        """The position in :attr:`headers` of the ``index``-th (from 0) ``[[path]]`` header, or None."""
+        if self._elements is None:
+            self._elements = {}
+            for k, (where, aot, _) in enumerate(self.headers):
+                if aot:
+                    self._elements.setdefault(where, []).append(k)
+        elements = self._elements.get(path, [])
+        return elements[index] if index < len(elements) else None
+
+    def element_line(self, path: Path, index: int) -> int | None:
+        """The line of the ``index``-th (from 0) ``[[path]]`` header, or None.
+
+        An array of tables written inline (``frame = [{...}, {...}]``) has no headers: each of its
+        elements gets the line of that key (the parser notes no line for each item of an inline array).
+
+        Example:
+            >>> p = locate("frame = [{}, {}]\\n")
+            >>> p.element_line(("frame",), 1), p.element_line(("other",), 0)
+            (1, None)
+        """
+        header = self.element(path, index)
+        if header is not None:
+            return self.headers[header][2]
+        if path and self._elements is not None and path not in self._elements:  # element() built the index
+            return self.keys.get((path[:-1], path[-1:]))
+        return None
+
+    def element_key(self, path: Path, index: int, key: str) -> int | None:
+        """The line of ``key = ...`` in the ``index``-th ``[[path]]`` table itself (not its sub-tables).
+
+        Example:
+            >>> p = locate("[[frame]]\\nabsent = []\\n[[frame]]\\n\\nabsent = []\\n")
+            >>> p.element_key(("frame",), 1, "absent"), p.element_key(("frame",), 2, "absent")
+            (5, None)
+        """
+        header = self.element(path, index)
+        if header is None:
+            return None
+        if self._owned is None:
+            self._owned = {}
+            for owner, key_path, n in self.owners:
+                self._owned.setdefault((owner, key_path), n)
+        return self._owned.get((header, (key,)))
+
+    def element_item(self, path: Path, index: int, sub: str, k: int) -> int | None:
+        """The line of the ``k``-th (from 0) ``[[path.sub]]`` of the ``index``-th ``[[path]]``.
+
+        When the element writes the array inline (``sub = [{...}, {...}]``), every item gets the
+        line of that key: the parser notes no line for each item of an inline array.
+
+        Example:
+            >>> p = locate("[[frame]]\\n[[frame.load]]\\n[[frame]]\\nload = [{}, {}]\\n")
+            >>> p.element_item(("frame",), 0, "load", 0), p.element_item(("frame",), 1, "load", 1)
+            (2, 4)
+        """
+        groups = self.array((*path, sub), path)
+        tables = groups[index] if index < len(groups) else []
+        if k < len(tables):
+            return tables[k]
+        return None if tables else self.element_key(path, index, sub)
+
     def key(self, table: Path, key: str) -> int | None:
         """The line of ``key`` in a table (its header path; ``()`` for the top level)."""
         return self.keys.get((table, (key,)))
@@ -54,12 +147,16 @@ class Positions:
         ``array(("frame",))`` gives ``[[line of frame 1, line of frame 2, ...]]``;
         ``array(("frame", "member"), ("frame",))`` gives one list of member lines per frame.
         """
+        cached = self._arrays.get((path, parent))
+        if cached is not None:
+            return cached
         groups: list[list[int]] = [[]] if not parent else []
         for where, aot, line in self.headers:
             if parent and where == parent and aot:
                 groups.append([])
             elif where == path and aot and groups:
                 groups[-1].append(line)
+        self._arrays[(path, parent)] = groups
         return groups
 
 
@@ -72,6 +169,7 @@ class _Locating(Parser):
         self.newlines = [k for k, c in enumerate(text) if c == "\n"]
         self.found = Positions()
         self.current: Path = ()
+        self.header = -1
         self.depth = 0
 
     def line_at(self, index: int) -> int:
@@ -84,6 +182,7 @@ class _Locating(Parser):
         path, aot = _header_path(header)
         if path:
             self.current = path
+            self.header = len(self.found.headers)
             self.found.headers.append((path, aot, self.line_at(start)))
         return super()._parse_table(parent_name, parent)
 
@@ -99,6 +198,7 @@ class _Locating(Parser):
         if self.depth == 0:
             parts = tuple(k.key for k in key) if isinstance(key, DottedKey) else (key.key,)
             self.found.keys.setdefault((self.current, parts), self.line_at(start))
+            self.found.owners.append((self.header, parts, self.line_at(start)))
         return key, value
 
 
@@ -117,6 +217,11 @@ def _header_path(header: str) -> tuple[Path, bool]:
         if isinstance(node, list) and len(node) == 1:
             aot, node = True, node[0]
     return tuple(path), aot
+
+
+def cite(line: int | None) -> str:
+    """``"line N, "`` to start a message with, or ``""`` when the line is not known."""
+    return "" if line is None else f"line {line}, "
 
 
 def locate(text: str) -> Positions:

@@ -28,7 +28,7 @@ import bracegrid.io.general as general
 import bracegrid.io.loads as loads
 import bracegrid.io.rules as rules
 from bracegrid.errors import InputError
-from bracegrid.io.positions import Positions, locate
+from bracegrid.io.positions import Positions, cite, locate
 from bracegrid.io.robustness import TABLE as ROBUSTNESS_TABLE
 from bracegrid.io.robustness import read_robustness
 from bracegrid.model import (
@@ -78,47 +78,28 @@ MAX_NESTING = 16
 class _Lines:
     """Line numbers of the file's tables and fields, from tomlkit's parser (:mod:`bracegrid.io.positions`)."""
 
-    frames: list[int] = field(default_factory=list)
-    members: list[list[int]] = field(default_factory=list)
-    openings: list[list[int]] = field(default_factory=list)
     found: Positions = field(default_factory=Positions)
 
     @classmethod
     def scan(cls, text: str) -> _Lines:
-        found = locate(text) if text else Positions()
-        frames = found.array(("frame",))[0]
-        members = found.array(("frame", "member"), ("frame",))
-        openings = found.array(("frame", "opening"), ("frame",))
-        return cls(frames, members, openings, found)
+        return cls(locate(text) if text else Positions())
 
-    @staticmethod
-    def at(lines: list[int], index: int) -> str:
-        return f"line {lines[index]}, " if index < len(lines) else ""
+    def frame(self, index: int) -> str:
+        """``"line N, "`` for the ``index``-th (from 0) ``[[frame]]``, or ``""``."""
+        return cite(self.found.element_line(("frame",), index))
 
     def table(self, *path: str) -> str:
-        """``"line N, "`` for a table (its header, the key of an inline table, or its first sub-table), or ``""``."""
-        line = self.found.table(*path)
-        if line is None:
-            line = next((n for where, _, n in self.found.headers if where[: len(path)] == path), None)
-        return f"line {line}, " if line is not None else ""
+        """``"line N, "`` for a table (:meth:`~bracegrid.io.positions.Positions.within`), or ``""``."""
+        return cite(self.found.within(*path))
 
     def key(self, table: tuple[str, ...], key: str) -> str:
         """``"line N, "`` for a field of a table (``()`` = the top level), or the table's line, or ``""``."""
         line = self.found.key(table, key)
-        return f"line {line}, " if line is not None else (self.table(*table) if table else "")
+        return cite(line) if line is not None else (self.table(*table) if table else "")
 
     def item(self, index: int, kind: str, k: int) -> str:
         """The line of the ``k``-th ``[[frame.<kind>]]`` of frame ``index``, or of its inline ``<kind> = [...]`` key."""
-        tables = self.members if kind == "member" else self.openings
-        if index < len(tables) and k < len(tables[index]):
-            return f"line {tables[index][k]}, "
-        if index < len(self.frames):
-            frame_line = self.frames[index]
-            keyed = [n for (t, key), n in self.found.keys.items() if t == ("frame",) and key == (kind,)]
-            later = [n for n in keyed if n > frame_line and all(not (frame_line < f < n) for f in self.frames)]
-            if later:
-                return f"line {later[0]}, "
-        return ""
+        return cite(self.found.element_item(("frame",), index, kind, k))
 
 
 class _Collector:
@@ -402,12 +383,12 @@ def _table_array(col: _Collector, where: str, table: Mapping[str, Any], key: str
 
 
 def _read_frame(col: _Collector, index: int, raw: object, unit: str, lines: _Lines) -> Frame | None:
-    where0 = f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}"
+    where0 = f"{lines.frame(index)}[[frame]] #{index + 1}"
     table = col.table(where0, raw)
     if table is None:
         return None
     name = col.text(f"{where0}.name", table.get("name"))
-    where = f"{_Lines.at(lines.frames, index)}frame {name!r}" if name else where0
+    where = f"{lines.frame(index)}frame {name!r}" if name else where0
     col.unknown_keys(where, table, _FRAME_KEYS)
     widths = _read_sizes(col, f"{where}.widths", table.get("widths"), unit)
     heights = _read_sizes(col, f"{where}.heights", table.get("heights"), unit)
@@ -644,7 +625,7 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
         else:
             unit = raw_unit
     costs = _read_costs(col, data.get("costs"), lines)
-    likelihood, robustness_problems = read_robustness(data.get(ROBUSTNESS_TABLE), text=text)
+    likelihood, robustness_problems = read_robustness(data.get(ROBUSTNESS_TABLE), lines=lines.found)
     col.problems.extend(robustness_problems)
     raw_frames = data.get("frame")
     frames: list[Frame] = []
@@ -656,12 +637,12 @@ def project_from_data(data: Mapping[str, Any], *, source: str = "<data>", text: 
         got = _read_frame(col, index, raw, unit, lines)
         if got is not None:
             got = rules.add_frame_rules(col, got, raw, where=f"frame {got.name!r}")
-            got = loads.add_frame_loads(col, got, raw, index=index, text=text)
-            got = general.add_frame_general(col, got, raw, index=index, text=text)
+            got = loads.add_frame_loads(col, got, raw, index=index, lines=lines.found)
+            got = general.add_frame_general(col, got, raw, index=index, lines=lines.found)
             frames.append(got)
             _check_layout_price(col, got, costs)
         elif len(col.problems) == before:  # never drop a frame without saying why
-            col.add(f"{_Lines.at(lines.frames, index)}[[frame]] #{index + 1}", "could not be read; check its fields")
+            col.add(f"{lines.frame(index)}[[frame]] #{index + 1}", "could not be read; check its fields")
     names = [f.name for f in frames]
     for dup in sorted({n for n in names if names.count(n) > 1}):
         col.add("[[frame]]", f"two frames are named {dup!r}; give each a unique name")

@@ -7,33 +7,24 @@ tie = 3.0                      # ties are cut three times as often as braces
 ```
 
 Kinds left out keep 1.0; 0 means never taken out; at least one kind must be above 0. The
-reading module calls :func:`read_robustness` with the parsed table and the file text (for the
-line number) and adds the problems it returns to its own list.
+reading module calls :func:`read_robustness` with the parsed table and the file's positions (for
+the line numbers, :mod:`bracegrid.io.positions`) and adds the problems it returns to its own list.
 """
 
 from __future__ import annotations
 
 import difflib
 import math
-import re
 from collections.abc import Mapping
 from typing import Any
 
+from bracegrid.io.positions import Positions, cite
 from bracegrid.model import LossLikelihood, MemberKind
 
 #: The key of the table at the top level of a project file.
 TABLE = "robustness"
 _KEYS = {"loss_likelihood"}
 _KINDS = {k.value for k in MemberKind}
-
-
-def _line(text: str, header: str) -> str:
-    """'line N, ' of a table header (``[robustness]`` or ``[robustness.loss_likelihood]``), or ''."""
-    pattern = re.compile(r"^\s*\[\s*" + r"\s*\.\s*".join(map(re.escape, header.split("."))) + r"\s*\]")
-    for number, line in enumerate(text.splitlines(), start=1):
-        if pattern.match(line):
-            return f"line {number}, "
-    return ""
 
 
 def _unknown(where: str, table: Mapping[str, Any], known: set[str]) -> list[str]:
@@ -46,12 +37,13 @@ def _unknown(where: str, table: Mapping[str, Any], known: set[str]) -> list[str]
     return out
 
 
-def read_robustness(raw: object, *, text: str = "") -> tuple[LossLikelihood, list[str]]:
+def read_robustness(raw: object, *, lines: Positions | None = None) -> tuple[LossLikelihood, list[str]]:
     """Read the ``[robustness]`` table.
 
     Args:
         raw: The parsed table (None when the file has none).
-        text: The file text, to name the line of the table in messages.
+        lines: Where the file's tables are (:func:`bracegrid.io.positions.locate`), to name the line
+            of the table in messages: its header, or the key of the inline table (None: no lines).
 
     Returns:
         The loss likelihoods (defaults where the file says nothing) and the problems found, each
@@ -65,12 +57,14 @@ def read_robustness(raw: object, *, text: str = "") -> tuple[LossLikelihood, lis
     """
     if raw is None:
         return LossLikelihood(), []
-    where = f"{_line(text, TABLE)}[{TABLE}]"
+    found = lines or Positions()
+    where = f"{cite(found.within(TABLE))}[{TABLE}]"
     if not isinstance(raw, Mapping):
         return LossLikelihood(), [f"{where}: expected a table, got {type(raw).__name__}"]
     problems = _unknown(where, raw, _KEYS)
     given = raw.get("loss_likelihood", {})
-    where = f"{_line(text, f'{TABLE}.loss_likelihood') or _line(text, TABLE)}[{TABLE}.loss_likelihood]"
+    line = found.within(TABLE, "loss_likelihood")
+    where = f"{cite(found.within(TABLE) if line is None else line)}[{TABLE}.loss_likelihood]"
     if not isinstance(given, Mapping):
         problems.append(f"{where}: expected a table of kind = likelihood, e.g. {{ brace = 1.0, tie = 3.0 }}")
         return LossLikelihood(), problems
