@@ -52,11 +52,11 @@ def short_label(text: str, limit: int = LABEL_CHARS) -> str:
 
 
 def markup_text(text: object) -> str:
-    """Text for HTML and SVG: control characters escaped as above, then the markup characters.
+    r"""Text for HTML and SVG: control characters escaped as above, then the markup characters.
 
     Example:
-        >>> markup_text('<a & "b"\x00>')
-        '&lt;a &amp; &quot;b&quot;\\x00&gt;'
+        >>> markup_text('<a & "b"\x07>')
+        '&lt;a &amp; &quot;b&quot;\\x07&gt;'
     """
     return html.escape(visible_text(str(text), one_line=False), quote=True)
 
