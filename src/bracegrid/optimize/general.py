@@ -169,6 +169,7 @@ def loss_cuts(
             if result.rigid:
                 continue
             assert result.motion is not None
+            before = len(out)
             for z in [result.motion, *result.others]:
                 hit = _stretched(
                     _elongations(result.reduced, frame, z, cands.members), cands, exact=result.exact_motion
@@ -184,6 +185,11 @@ def loss_cuts(
                                            "could stop the mechanism that is left; clear more bays or allow "
                                            "more member kinds"])  # fmt: skip
                 out.append((hit, need))
+            if len(out) == before:
+                # u stretches only members of ``gone`` (it is a flex of the rest), so at most k kept ones
+                # and the need is at least 1: a failing loss always gives a cut. Never accept it silently.
+                msg = f"internal error: a member loss on frame {frame.name!r} gave no loss cut; this is a bracegrid bug"
+                raise RuntimeError(msg)
             if len(out) >= most:
                 return out
     return out
