@@ -123,10 +123,7 @@ def optimize_frame(
     use_loads = strength is not None and bool(frame.loads) and has_capacities(strength)
     if not frame.is_complete:
         sol = _optimize_general(frame, costs, options=options, on_progress=on_progress, strength=strength)
-        if strength is None or not frame.loads:
-            return sol
-        check = strength_check(frame, strength, sol.members, searched=not options.stability_only and use_loads)
-        return dataclasses.replace(sol, strength=check)
+        return _with_checks(sol, strength, searched=not options.stability_only and use_loads)
     kept = tuple(frame.members)
     table = bay_table(frame, costs, kept, allow)
     reasons = infeasible_reasons(frame, table, allow, k)
@@ -171,10 +168,14 @@ def optimize_frame(
     else:
         found = _solve(frame, table, allow, k, options, deadline, report)
     sol = _finish(frame, costs, table, found, k, start)
-    if strength is None or not frame.loads:
+    return _with_checks(sol, strength, searched=not options.stability_only and use_loads)
+
+
+def _with_checks(sol: FrameSolution, strength: StrengthCatalogue | None, *, searched: bool) -> FrameSolution:
+    """The solution with both strength checks of its layout attached (a frame with load cases)."""
+    if strength is None or not sol.frame.loads:
         return sol
-    check = strength_check(frame, strength, sol.members, searched=not options.stability_only and use_loads)
-    return dataclasses.replace(sol, strength=check)
+    return dataclasses.replace(sol, strength=strength_check(sol.frame, strength, sol.members, searched=searched))
 
 
 def _optimize_general(
