@@ -410,6 +410,11 @@ def solve_strength(
     scaled: dict[float, PlasticFrame] = {}
     seen: set[tuple[tuple[tuple[int, int], ...], int]] = set()
     images = USE_IMAGES
+    costs = [unit_cost(table, c) for c in cands]
+
+    def price(chosen: Sequence[bool]) -> int:
+        return sum(cost for cost, on in zip(costs, chosen, strict=True) if on)
+
     started = time.monotonic()
     # With the elastic check to meet, the cut loop leaves a share of the time to the annealing
     # search below (used only when the loop has not proven its answer).
@@ -437,7 +442,7 @@ def solve_strength(
                     master.add_cut(cut)
             if fixed is None:
                 break
-            cost = sum(unit_cost(table, c) for c, on in zip(cands, fixed, strict=True) if on)
+            cost = price(fixed)
             if best_cost is not None and cost >= best_cost:
                 break
             if _elastic_ok(frame, strength, cands, fixed, elastic_needed):
@@ -445,7 +450,7 @@ def solve_strength(
                 lean = _prune(scaled[factor], table, rows, k, fixed, until)
                 if lean != fixed and _elastic_ok(frame, strength, cands, lean, elastic_needed):
                     fixed = lean
-                    cost = sum(unit_cost(table, c) for c, on in zip(cands, fixed, strict=True) if on)
+                    cost = price(fixed)
                 return (fixed, cost), fallback
             fallback = fallback or fixed
         return None, fallback
@@ -454,15 +459,12 @@ def solve_strength(
         """The cheaper of two plastic-only layouts (the annealing search may start from it)."""
         if have is None or other is None:
             return have or other
-        return min(have, other, key=lambda x: sum(unit_cost(table, c) for c, on in zip(cands, x, strict=True) if on))
+        return min(have, other, key=price)
 
     seed_layout = _flags(cands, start)
     if seed_layout is not None and _meets_rows(rows, cands, seed_layout):
         if pf is None:
-            best, best_cost = (
-                seed_layout,
-                sum(unit_cost(table, c) for c, on in zip(cands, seed_layout, strict=True) if on),
-            )
+            best, best_cost = seed_layout, price(seed_layout)
         else:
             found_layout, fallback = incumbent(seed_layout)
             plastic_only = cheaper(plastic_only, fallback)
@@ -503,7 +505,7 @@ def solve_strength(
             break
         if status == "unknown":
             break
-        cost = sum(unit_cost(table, c) for c, on in zip(cands, chosen, strict=True) if on)
+        cost = price(chosen)
         solved = status in ("optimal", "gap")
         if solved and exact:
             bound = max(bound, min(got_bound, cost))
@@ -580,7 +582,7 @@ def solve_strength(
         start_from = best or plastic_only or _fullest(pf, rows, k, table)
         if start_from is not None:
             annealed = anneal(
-                cands, [unit_cost(table, c) for c in cands], start_from,
+                cands, costs, start_from,
                 holds=lambda x: _stable_at(frame, table, cands, x, k) and _meets_rows(rows, cands, x),
                 judge=_judge(frame, strength, cands), deadline=final, seed=seed,
             )  # fmt: skip
@@ -597,7 +599,7 @@ def solve_strength(
         msg = f"frame {frame.name!r}: no layout passed the checks within the time limit; raise the time limit"
         raise SolverLimitError(msg)
     new = tuple(c.member for c, on in zip(cands, pick, strict=True) if on and not c.kept)
-    added = sum(unit_cost(table, c) for c, on in zip(cands, pick, strict=True) if on)
+    added = price(pick)
     return StrengthFound(new, added, min(bound, added), proven and best is not None, rounds, master.cuts, excluded)
 
 
